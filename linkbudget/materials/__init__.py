@@ -1,0 +1,1 @@
+"""Material dispersion models and the shipped catalog of optical constants."""

@@ -1,0 +1,1 @@
+"""Output formats for an evaluated link."""
