@@ -1,0 +1,180 @@
+"""The command line: a thin Typer app wiring config, engine and reports together.
+
+Exit codes, for every command: 0 the link closes / the command succeeded; 1 a link does not
+meet its margin or overload; 2 the input is wrong; 3 an internal error (a bug).
+"""
+
+import sys
+from enum import Enum
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from linkbudget import __version__
+
+EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
+
+app = typer.Typer(
+    help="Optical link budgets from physics and datasheets, kept as YAML.",
+    no_args_is_help=True,
+    add_completion=False,
+    pretty_exceptions_enable=False,
+)
+
+
+class Format(str, Enum):
+    terminal = "terminal"
+    json = "json"
+    markdown = "markdown"
+    csv = "csv"
+
+
+def _fail_input(message):
+    typer.echo(message, err=True)
+    raise typer.Exit(EXIT_INPUT)
+
+
+def _load(path):
+    from linkbudget.config import ConfigError, load_link
+
+    try:
+        return load_link(path)
+    except ConfigError as error:
+        _fail_input(str(error))
+
+
+def _margin_override(text):
+    if text is None:
+        return None
+    from linkbudget.units import UnitError, parse_quantity
+
+    try:
+        return parse_quantity(text, "ratio")
+    except UnitError as error:
+        _fail_input(f"--min-margin: {error}" + (f"\n  hint: {error.hint}" if error.hint else ""))
+
+
+def _version(value: bool):
+    if value:
+        typer.echo(f"linkbudget {__version__}")
+        raise typer.Exit()
+
+
+@app.callback()
+def _root(
+    version: Annotated[Optional[bool], typer.Option("--version", callback=_version, is_eager=True,
+                                                    help="Print the version and exit.")] = None,
+):
+    """Optical link budgets from physics and datasheets, kept as YAML."""
+
+
+def _report_text(result, output_format):
+    """The report as text in one of the file formats (terminal output as plain text)."""
+    if output_format is Format.json:
+        import json
+
+        return json.dumps(result.to_dict(), indent=2) + "\n"
+    if output_format is Format.markdown:
+        from linkbudget.report.markdown import render
+
+        return render(result)
+    if output_format is Format.csv:
+        from linkbudget.report.csv import render
+
+        return render(result)
+    import io
+
+    from rich.console import Console
+
+    from linkbudget.report.terminal import render
+
+    console = Console(file=io.StringIO(), width=120)
+    console.print(render(result))
+    return console.file.getvalue()
+
+
+@app.command()
+def run(
+    link: Annotated[Path, typer.Argument(help="The link file (YAML).")],
+    output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
+    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write to this file instead of the terminal.")] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    min_margin: Annotated[Optional[str], typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")] = None,
+):
+    """Print the budget of one link: every segment, received power, margins, verdict."""
+    from linkbudget.engine import evaluate
+
+    required = _margin_override(min_margin)
+    result = evaluate(_load(link), required_margin_db=required)
+    _emit(result, output_format, output, force, protected=[link])
+    raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
+
+
+def _emit(result, output_format, output, force, protected):
+    if output is None and output_format is Format.terminal:
+        from rich.console import Console
+
+        from linkbudget.report.terminal import render
+
+        Console().print(render(result))
+        return
+    text = _report_text(result, output_format)
+    if output is None:
+        sys.stdout.write(text)
+        return
+    from linkbudget.report.output import OutputError, write_atomic
+
+    try:
+        write_atomic(output, text, overwrite=force, protected=protected)
+    except OutputError as error:
+        _fail_input(str(error))
+
+
+@app.command()
+def check(
+    links: Annotated[list[Path], typer.Argument(help="One or more link files.")],
+    min_margin: Annotated[Optional[str], typer.Option("--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")] = None,
+):
+    """The CI gate: one line per link, exit 0 only if every link closes."""
+    from linkbudget.config import ConfigError, load_link
+    from linkbudget.engine import evaluate
+
+    required = _margin_override(min_margin)
+    closes = fails = broken = 0
+    for path in links:
+        try:
+            result = evaluate(load_link(path), required_margin_db=required)
+        except ConfigError as error:
+            broken += 1
+            typer.echo(f"ERROR  {path}: input error", err=False)
+            typer.echo(str(error), err=True)
+            continue
+        worst = float(result.margin_db["worst"].min())
+        word = "PASS " if result.closes else "FAIL "
+        reasons = []
+        if not result.margin_ok:
+            reasons.append("margin short")
+        if not result.overload_ok:
+            reasons.append("overload exceeded")
+        typer.echo(f"{word}  {path}: worst-case margin {worst:+.2f} dB, required "
+                   f"{result.required_margin_db:.2f} dB" + (f" ({', '.join(reasons)})" if reasons else ""))
+        closes += result.closes
+        fails += not result.closes
+    typer.echo(f"{len(links)} link(s): {closes} close, {fails} do not close, {broken} with input errors")
+    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+def main():
+    """Console-script entry point."""
+    try:
+        app()
+    except SystemExit:
+        raise
+    except Exception as error:  # a bug: say so plainly, with exit code 3
+        import traceback
+
+        traceback.print_exc()
+        typer.echo(f"linkbudget: internal error ({type(error).__name__}); this is a bug, please report it",
+                   err=True)
+        sys.exit(EXIT_BUG)

@@ -1,0 +1,185 @@
+"""Load a link file: YAML text -> validated :class:`Link`, or a :class:`ConfigError`.
+
+Every problem, whatever its cause, is reported as ``FILE:LINE:COL: key.path: message`` with
+an optional hint line; all problems of a file are collected, not only the first.
+"""
+
+import difflib
+import typing
+from dataclasses import dataclass
+from pathlib import Path
+
+from pydantic import BaseModel, ValidationError
+
+from linkbudget.config.schema import LinkSpec
+from linkbudget.config.source import ConfigError, Positions, Problem, load_yaml
+from linkbudget.segments.registry import KINDS
+
+#: Largest link file read [bytes]; a link is a few kB of text.
+MAX_FILE_BYTES = 5_000_000
+
+
+@dataclass(frozen=True)
+class Link:
+    """A validated link: its top-level spec, its segments, and where it was read from."""
+
+    spec: LinkSpec
+    segments: tuple
+    file: str
+    base_dir: Path
+    positions: Positions
+
+    @property
+    def title(self):
+        return self.spec.title
+
+
+def _model_at(model, loc):
+    """The schema model that validates the mapping at ``loc`` below ``model``, if any."""
+    for part in loc:
+        if isinstance(part, int) or model is None:
+            continue
+        field = model.model_fields.get(part) or next(
+            (f for f in model.model_fields.values() if f.alias == part), None)
+        if field is None:
+            return None
+        model = _inner_model(field.annotation)
+    return model
+
+
+def _inner_model(annotation):
+    if isinstance(annotation, type) and issubclass(annotation, BaseModel):
+        return annotation
+    for argument in typing.get_args(annotation):
+        found = _inner_model(argument)
+        if found is not None:
+            return found
+    return None
+
+
+def _keys_of(model):
+    return [field.alias or name for name, field in model.model_fields.items()]
+
+
+def _written_path(data, loc):
+    """``loc`` cut where the written data ends (a spread written as one value has no ``typ``)."""
+    path, node = [], data
+    for part in loc:
+        if isinstance(node, dict) and part in node or isinstance(node, list) and isinstance(
+                part, int) and part < len(node):
+            path.append(part)
+            node = node[part]
+        else:
+            break
+    return tuple(path), node
+
+
+def _message(error):
+    message = error["msg"].removeprefix("Value error, ").removeprefix("Assertion failed, ")
+    cause = error.get("ctx", {}).get("error")
+    return message, getattr(cause, "hint", None)
+
+
+def problems_from_validation(error, positions, model, data, prefix=()):
+    """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s."""
+    problems = []
+    for item in error.errors():
+        loc = tuple(item["loc"])
+        if item["type"] == "extra_forbidden":
+            key = loc[-1]
+            parent = _model_at(model, loc[:-1])
+            allowed = _keys_of(parent) if parent else []
+            close = difflib.get_close_matches(str(key), allowed, n=1)
+            hint = f"did you mean '{close[0]}'?" if close else (
+                f"allowed keys: {', '.join(allowed)}" if allowed else None)
+            problems.append(positions.problem((*prefix, *loc), f"unknown key '{key}'", hint, at_key=True))
+            continue
+        path, _ = _written_path(data, loc)
+        if item["type"] == "missing":
+            problems.append(positions.problem((*prefix, *path), f"missing required key '{loc[-1]}'"))
+            continue
+        message, hint = _message(item)
+        problems.append(positions.problem((*prefix, *path), message, hint))
+    return problems
+
+
+def _validate_segment(item, index, positions):
+    path = ("chain", index)
+    if not isinstance(item, dict):
+        return None, [positions.problem(path, "a chain item must be a mapping with a 'kind'")]
+    kind = item.get("kind")
+    if kind not in KINDS:
+        close = difflib.get_close_matches(str(kind), KINDS, n=1)
+        hint = f"did you mean '{close[0]}'?" if close else f"kinds: {', '.join(KINDS)}"
+        message = "missing required key 'kind'" if kind is None else f"unknown segment kind '{kind}'"
+        return None, [positions.problem((*path, "kind"), message, hint)]
+    model = KINDS[kind]
+    try:
+        segment = model.model_validate(item)
+    except ValidationError as error:
+        return None, problems_from_validation(error, positions, model, item, path)
+    if segment.name is None:
+        segment = segment.model_copy(update={"name": f"{kind} {index + 1}"})
+    return segment, []
+
+
+def parse_link(text, file="<string>", base_dir=None):
+    """Validate link text and return a :class:`Link`.
+
+    Parameters
+    ----------
+    text : str
+        The YAML document.
+    file : str
+        Name used in messages.
+    base_dir : path-like, optional
+        Folder for files the link refers to (own material files); default: the current folder.
+
+    Raises
+    ------
+    ConfigError
+        With every problem found, each placed at its line, column and key path.
+    """
+    data, positions = load_yaml(text, file)
+    if not isinstance(data, dict):
+        raise ConfigError([Problem(file, positions.mark(()), (), "a link file is a mapping of keys")])
+    problems = []
+    try:
+        spec = LinkSpec.model_validate(data)
+    except ValidationError as error:
+        spec = None
+        problems += problems_from_validation(error, positions, LinkSpec, data)
+    chain = data.get("chain")
+    segments, seen = [], {}
+    for index, item in enumerate(chain if isinstance(chain, list) else []):
+        segment, found = _validate_segment(item, index, positions)
+        problems += found
+        if segment is None:
+            continue
+        if segment.name in seen:
+            problems.append(positions.problem(
+                ("chain", index, "name"), f"duplicate segment name '{segment.name}'",
+                f"already used by chain[{seen[segment.name]}]; names identify segments in diffs"))
+        seen.setdefault(segment.name, index)
+        segments.append(segment)
+    if problems:
+        raise ConfigError(problems)
+    return Link(spec, tuple(segments), file, Path(base_dir or "."), positions)
+
+
+def load_link(path):
+    """Read and validate a link file; see :func:`parse_link`."""
+    path = Path(path)
+    try:
+        if path.stat().st_size > MAX_FILE_BYTES:
+            raise ConfigError([Problem(str(path), None, (), f"file is larger than {MAX_FILE_BYTES} bytes")])
+        text = path.read_text(encoding="utf-8")
+    except FileNotFoundError:
+        raise ConfigError([Problem(str(path), None, (), "file not found")]) from None
+    except IsADirectoryError:
+        raise ConfigError([Problem(str(path), None, (), "is a directory, not a link file")]) from None
+    except UnicodeDecodeError as error:
+        raise ConfigError([Problem(str(path), None, (), f"not UTF-8 text ({error.reason})")]) from None
+    except OSError as error:
+        raise ConfigError([Problem(str(path), None, (), f"cannot read: {error.strerror}")]) from None
+    return parse_link(text, str(path), path.parent)

@@ -1,0 +1,35 @@
+"""The Markdown report, for a pull-request comment."""
+
+from linkbudget.report.summary import margin_sentence, nm, overload_sentence, verdict
+
+
+def _cell(value):
+    return "blocked" if value == float("inf") else f"{value:.2f}"
+
+
+def _table(headers, rows):
+    lines = ["| " + " | ".join(headers) + " |", "|" + "|".join("---:" if i else "---" for i in range(len(headers))) + "|"]
+    lines += ["| " + " | ".join(row) + " |" for row in rows]
+    return lines
+
+
+def render(result):
+    """The report as Markdown text."""
+    index = result.governing_index
+    mark = "✅" if result.closes else "❌"
+    lines = [f"### {mark} {result.title}: {verdict(result)}", "",
+             f"- {margin_sentence(result)}", f"- {overload_sentence(result)}", "",
+             f"Budget at {nm(result.wavelength_m[index])}:", ""]
+    lines += _table(
+        ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm"],
+        [[row.name, row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
+          _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index])]
+         for n, row in enumerate(result.rows)])
+    lines += ["", "Margins:", ""]
+    lines += _table(
+        ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB"],
+        [[nm(wavelength), _cell(result.received_dbm["typ"][i]), _cell(result.received_dbm["worst"][i]),
+          _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i])]
+         for i, wavelength in enumerate(result.wavelength_m)])
+    lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
+    return "\n".join(lines)

@@ -1,0 +1,40 @@
+"""The budget's verdict in words, shared by every human-readable format."""
+
+import numpy as np
+
+
+def nm(wavelength_m):
+    return f"{wavelength_m * 1e9:.6g} nm"
+
+
+def margin_sentence(result):
+    """One sentence on the worst-case margin against the required margin."""
+    index = result.governing_index
+    worst = float(result.margin_db["worst"][index])
+    required = result.required_margin_db
+    where = f" at {nm(result.wavelength_m[index])}" if result.wavelength_m.size > 1 else ""
+    if result.margin_ok:
+        return (f"Margin met: worst-case margin {worst:.2f} dB{where} is at least the required "
+                f"{required:.2f} dB (spare {worst - required:.2f} dB).")
+    return (f"Margin NOT met: worst-case margin {worst:.2f} dB{where} is below the required "
+            f"{required:.2f} dB (short by {required - worst:.2f} dB).")
+
+
+def overload_sentence(result):
+    """One sentence on the best-case received power against the receiver overload."""
+    if result.overload_dbm is None:
+        return "Overload not checked: the receiver gives no overload."
+    best = result.received_dbm["best"]
+    index = int(np.argmax(best))
+    where = f" at {nm(result.wavelength_m[index])}" if result.wavelength_m.size > 1 else ""
+    if result.overload_ok:
+        return (f"Overload OK: best-case received power {best[index]:.2f} dBm{where} is at or below "
+                f"the overload {result.overload_dbm:.2f} dBm.")
+    return (f"Overload EXCEEDED: best-case received power {best[index]:.2f} dBm{where} is above the "
+            f"overload {result.overload_dbm:.2f} dBm by {best[index] - result.overload_dbm:.2f} dB; "
+            "add attenuation.")
+
+
+def verdict(result):
+    """``"CLOSES"`` or ``"DOES NOT CLOSE"``."""
+    return "CLOSES" if result.closes else "DOES NOT CLOSE"

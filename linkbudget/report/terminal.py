@@ -1,0 +1,79 @@
+"""The terminal report: a rich table of the budget and its verdict in words.
+
+Colour is an aid only: every status is also written out.
+"""
+
+from rich import box
+from rich.console import Group
+from rich.panel import Panel
+from rich.table import Table
+from rich.text import Text
+
+from linkbudget.report.summary import margin_sentence, nm, overload_sentence, verdict
+
+#: Wavelengths listed one by one in the margin table; longer axes list the tightest ones.
+MAX_LISTED_WAVELENGTHS = 8
+
+
+def _db(value, signed=False):
+    if value != value or abs(value) == float("inf"):
+        return "blocked" if value > 0 else "-inf"
+    return f"{value:+.2f}" if signed else f"{value:.2f}"
+
+
+def budget_table(result, index):
+    """The per-segment table at wavelength number ``index``."""
+    table = Table(title=f"Budget at {nm(result.wavelength_m[index])}", title_justify="left", box=box.SIMPLE_HEAD,
+                  caption="losses and totals in dB; power after each segment in dBm", caption_justify="left")
+    table.add_column("#", justify="right")
+    table.add_column("segment", min_width=12, overflow="fold")
+    table.add_column("kind", min_width=9, no_wrap=True)
+    for header in ("loss\ntyp", "loss\nworst", "total\nworst", "power\ntyp", "power\nworst"):
+        table.add_column(header, justify="right", no_wrap=True)
+    table.add_row("", "source", "", "", "", "", _db(result.source_dbm["typ"][index], True),
+                  _db(result.source_dbm["worst"][index], True))
+    for number, row in enumerate(result.rows):
+        table.add_row(
+            str(number + 1), row.name, row.kind,
+            _db(result.loss_db["typ"][number, index]), _db(result.loss_db["worst"][number, index]),
+            _db(result.cumulative_loss_db["worst"][number, index]),
+            _db(result.power_after_dbm["typ"][number, index], True),
+            _db(result.power_after_dbm["worst"][number, index], True),
+        )
+    return table
+
+
+def margin_table(result):
+    """Received power and margin per wavelength (the tightest ones on a long axis)."""
+    table = Table(title="Received power (dBm) and margin (dB)", title_justify="left", box=box.SIMPLE_HEAD)
+    for header in ("wavelength", "received\ntyp", "received\nworst", "received\nbest", "margin\ntyp",
+                   "margin\nworst", "status"):
+        table.add_column(header, justify="right", no_wrap=True)
+    order = result.margin_db["worst"].argsort(kind="stable")[:MAX_LISTED_WAVELENGTHS]
+    for index in sorted(order):
+        worst = result.margin_db["worst"][index]
+        ok = worst >= result.required_margin_db
+        table.add_row(
+            nm(result.wavelength_m[index]), _db(result.received_dbm["typ"][index], True),
+            _db(result.received_dbm["worst"][index], True), _db(result.received_dbm["best"][index], True),
+            _db(result.margin_db["typ"][index], True), _db(worst, True),
+            Text("ok" if ok else "SHORT", style="green" if ok else "bold red"),
+        )
+    if result.wavelength_m.size > MAX_LISTED_WAVELENGTHS:
+        table.caption = (f"the {MAX_LISTED_WAVELENGTHS} tightest of {result.wavelength_m.size} wavelengths; "
+                         "--format csv or json lists all")
+    return table
+
+
+def render(result):
+    """The whole terminal report as a rich renderable."""
+    closes = result.closes
+    headline = Text(f"{result.title}: {verdict(result)}", style="bold green" if closes else "bold red")
+    summary = Group(headline, Text(margin_sentence(result)), Text(overload_sentence(result)))
+    cautions = Panel("\n".join(f"- {line}" for line in result.cautions), title="Laser safety",
+                     title_align="left", border_style="yellow")
+    parts = [budget_table(result, result.governing_index)]
+    if result.wavelength_m.size > 1:
+        parts.append(Text(f"(the table shows the wavelength with the least worst-case margin; "
+                          f"the link carries {result.wavelength_m.size})", style="dim"))
+    return Group(*parts, margin_table(result), summary, cautions)
