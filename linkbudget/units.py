@@ -90,8 +90,9 @@ def allowed_units(dimension):
 
 
 def _allowed_hint(dimension):
+    article = "an" if dimension[0] in "aeiou" else "a"
     return (
-        f"write a {dimension} with its unit, e.g. '{EXAMPLES[dimension]}' "
+        f"write {article} {dimension} with its unit, e.g. '{EXAMPLES[dimension]}' "
         f"(units: {', '.join(allowed_units(dimension))})"
     )
 

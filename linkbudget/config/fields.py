@@ -7,6 +7,7 @@ mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``)
 """
 
 import math
+import re
 from functools import cache
 from typing import Annotated, Any, ClassVar
 
@@ -20,6 +21,9 @@ SIGMA_SPAN = 3.0
 
 #: The budget cases. ``worst`` takes every value at the end that hurts, ``best`` at the other.
 CASES = ("typ", "worst", "best")
+
+
+_PLAIN_NUMBER = re.compile(r"^\s*[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?\s*$")
 
 
 class Strict(BaseModel):
@@ -59,8 +63,13 @@ def quantity(dimension, *, minimum=None, strictly_positive=False):
 def number(*, minimum=None, strictly_positive=False):
     """An annotated float field for a dimensionless number (an index, a ratio of powers)."""
     def parse(value):
+        # YAML 1.1 reads 1e-5 (no dot) as text, so plain numeric text is accepted too
+        if isinstance(value, str) and _PLAIN_NUMBER.match(value):
+            value = float(value)
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             raise ValueError(f"expected a number, got {value!r}")
+        if not math.isfinite(value):
+            raise ValueError(f"{value!r} is not a finite number")
         return _bounded(float(value), minimum, strictly_positive)
 
     return Annotated[float, BeforeValidator(parse)]

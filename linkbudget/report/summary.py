@@ -7,12 +7,21 @@ def nm(wavelength_m):
     return f"{wavelength_m * 1e9:.6g} nm"
 
 
+def _where(result, values, index):
+    """`` at 1271 nm`` for the wavelength ``index`` on a multi-wavelength axis, if values differ."""
+    if result.wavelength_m.size == 1:
+        return ""
+    if np.ptp(values) == 0:
+        return f" at all {result.wavelength_m.size} wavelengths"
+    return f" at {nm(result.wavelength_m[index])}"
+
+
 def margin_sentence(result):
     """One sentence on the worst-case margin against the required margin."""
     index = result.governing_index
     worst = float(result.margin_db["worst"][index])
     required = result.required_margin_db
-    where = f" at {nm(result.wavelength_m[index])}" if result.wavelength_m.size > 1 else ""
+    where = _where(result, result.margin_db["worst"], index)
     if result.margin_ok:
         return (f"Margin met: worst-case margin {worst:.2f} dB{where} is at least the required "
                 f"{required:.2f} dB (spare {worst - required:.2f} dB).")
@@ -26,7 +35,7 @@ def overload_sentence(result):
         return "Overload not checked: the receiver gives no overload."
     best = result.received_dbm["best"]
     index = int(np.argmax(best))
-    where = f" at {nm(result.wavelength_m[index])}" if result.wavelength_m.size > 1 else ""
+    where = _where(result, best, index)
     if result.overload_ok:
         return (f"Overload OK: best-case received power {best[index]:.2f} dBm{where} is at or below "
                 f"the overload {result.overload_dbm:.2f} dBm.")
