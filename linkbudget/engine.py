@@ -18,6 +18,8 @@ import numpy as np
 
 from linkbudget.cautions import CAUTIONS
 from linkbudget.config.fields import CASES
+from linkbudget.physics import fresnel, thinfilm
+from linkbudget.physics.decibel import loss_db_from_transmittance, transmittance_from_loss_db
 
 
 @dataclass(frozen=True)
@@ -96,12 +98,131 @@ class LinkResult:
         return result_dict(self)
 
 
-def segment_rows(segments, wavelength_m):
-    """One :class:`Row` per segment with its loss in every case."""
-    return tuple(
-        Row(segment.name, segment.kind, {case: segment.loss_db(wavelength_m, case) for case in CASES})
-        for segment in segments
-    )
+def _flat_row(name, kind, loss_db, **detail):
+    return Row(name, kind, {case: loss_db for case in CASES}, detail)
+
+
+def _refracted_angle_rad(n_from, angle_rad, n_to):
+    """Ray angle in ``n_to`` of a ray at ``angle_rad`` in ``n_from`` (Snell's law on the real
+    parts; π/2 beyond the critical angle, where the face transmits nothing anyway)."""
+    sine = np.real(n_from) * np.sin(angle_rad) / np.real(n_to)
+    return np.arcsin(np.clip(sine, -1.0, 1.0))
+
+
+def _face(name_from, name_to, n_from, n_to, angle_rad, polarization):
+    """A bare interface: its row, its reflectance, and its reflectance seen from the far side."""
+    reflectance, transmittance = fresnel.interface_power_coefficients(
+        n_from, n_to, angle_rad=angle_rad, polarization=polarization)
+    back, _ = fresnel.interface_power_coefficients(
+        n_to, n_from, angle_rad=_refracted_angle_rad(n_from, angle_rad, n_to), polarization=polarization)
+    row = _flat_row(f"{name_from} → {name_to}", "interface", loss_db_from_transmittance(transmittance),
+                    reflectance=reflectance)
+    return row, reflectance, back
+
+
+def _coating(coating, wavelength_m, n_up, n_down, angle_rad, polarization):
+    """A coating's row, its reflectance, and its reflectance seen from the downstream medium."""
+    angle = angle_rad if coating.angle is None else coating.angle
+    pol = coating.polarization or polarization
+    forward = thinfilm.coherent_stack(coating.layer_index, coating.thickness_m, wavelength_m,
+                                      n_incident=n_up, n_exit=n_down, angle_rad=angle, polarization=pol)
+    backward = thinfilm.coherent_stack(coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m,
+                                       n_incident=n_down, n_exit=n_up,
+                                       angle_rad=_refracted_angle_rad(n_up, angle, n_down), polarization=pol)
+    row = _flat_row(coating.name, "coating", loss_db_from_transmittance(forward.transmittance),
+                    reflectance=forward.reflectance, absorptance=forward.absorptance)
+    return [row], forward.reflectance, backward.reflectance
+
+
+@dataclass
+class _Carrier:
+    """The last segment that carried a medium, and what its exit face needs to know."""
+
+    segment: object
+    exit_angle_rad: np.ndarray | float  # ray angle inside it, at its exit face
+    polarization: str
+    back_reflectance: np.ndarray | float  # of its entry face, seen from inside
+    single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
+
+
+def _joint(upstream, segment, joint, coating, wavelength_m):
+    """Rows between two media and the ray entering ``segment``.
+
+    Returns (rows, reflectance of the first face met, back-reflectance of the last face,
+    angle in the upstream medium, polarization).
+    """
+    n_up, n_down = upstream.segment.medium_index(), segment.medium_index()
+    if segment.angle is not None:
+        angle, polarization = segment.angle, segment.polarization
+    else:
+        angle, polarization = upstream.exit_angle_rad, upstream.polarization
+    if coating is not None:
+        return (*_coating(coating, wavelength_m, n_up, n_down, angle, polarization), angle, polarization)
+    kind = "physical-contact" if joint is None else joint.joint
+    if kind == "index-matched" or (kind == "physical-contact" and np.array_equal(n_up, n_down)):
+        return [], 0.0, 0.0, angle, polarization
+    if kind == "air-gap":
+        n_air = joint.gap_index()
+        first, reflectance, _ = _face(upstream.segment.name, "air", n_up, n_air, angle, polarization)
+        angle_air = _refracted_angle_rad(n_up, angle, n_air)
+        second, _, back = _face("air", segment.name, n_air, n_down, angle_air, polarization)
+        return [first, second], reflectance, back, angle, polarization
+    row, reflectance, back = _face(upstream.segment.name, segment.name, n_up, n_down, angle, polarization)
+    return [row], reflectance, back, angle, polarization
+
+
+def _multiple_reflections_row(carrier, exit_reflectance):
+    """The incoherent sum of the light bouncing between a medium's two faces, as a (negative) loss.
+
+    T = T1·τ·T2 / (1 − R1'·R2·τ²): the single-pass rows give T1·τ·T2, this row the factor
+    1/(1 − R1'·R2·τ²), with τ the single-pass bulk transmittance (Born & Wolf, "Principles of
+    Optics", 1999, the incoherent sum over a thick plate; Katsidis & Siapkas, Appl. Opt. 41,
+    3978 (2002)).
+    """
+    losses = {}
+    for case, single_pass_db in carrier.single_pass_db.items():
+        tau = transmittance_from_loss_db(single_pass_db)
+        losses[case] = -loss_db_from_transmittance(1.0 - carrier.back_reflectance * exit_reflectance * tau ** 2)
+    return Row(f"{carrier.segment.name} multiple reflections", "reflections", losses)
+
+
+def budget_rows(segments, wavelength_m):
+    """The budget rows: every segment, with the interfaces and coatings between media inserted.
+
+    Between two consecutive segments that carry a medium the engine inserts their interface
+    (Fresnel, at the angle the downstream segment gives, or the one the upstream segment's
+    tilted faces give its exit face), or the coating that sits between them, or what the joint
+    of a connector or splice between them says (index-matched: nothing; air gap: two faces).
+    A medium's ``angle`` tilts both of its (parallel) faces and lengthens its path by 1/cos θ.
+    No interface is added before the first segment or after the last.
+    """
+    rows, upstream, joint, coating = [], None, None, None
+    for segment in segments:
+        if segment.kind == "coating":
+            coating = segment
+            continue
+        index = segment.medium_index()
+        if index is None:
+            joint = segment if hasattr(segment, "joint") else joint
+            rows.append(Row(segment.name, segment.kind,
+                            {case: segment.loss_db(wavelength_m, case) for case in CASES}))
+            continue
+        back_reflectance, angle, polarization = 0.0, 0.0, segment.polarization
+        if upstream is not None:
+            joint_rows, reflectance, back_reflectance, angle, polarization = _joint(
+                upstream, segment, joint, coating, wavelength_m)
+            rows += joint_rows
+            if upstream.single_pass_db is not None:
+                rows.append(_multiple_reflections_row(upstream, reflectance))
+        n_before = index if upstream is None else upstream.segment.medium_index()
+        inside = _refracted_angle_rad(n_before, angle, index) if segment.angle is not None else 0.0
+        with np.errstate(divide="ignore"):
+            bulk = {case: segment.loss_db(wavelength_m, case, cos_inside=np.cos(inside)) for case in CASES}
+        rows.append(Row(segment.name, segment.kind, bulk))
+        upstream = _Carrier(segment, inside, polarization, back_reflectance,
+                            bulk if getattr(segment, "multiple_reflections", False) else None)
+        joint = coating = None
+    return tuple(rows)
 
 
 def evaluate(link, *, required_margin_db=None):
@@ -127,7 +248,7 @@ def evaluate(link, *, required_margin_db=None):
         title=spec.title,
         file=link.file,
         wavelength_m=wavelength_m,
-        rows=segment_rows(link.segments, wavelength_m),
+        rows=budget_rows(link.segments, wavelength_m),
         source_dbm=source_dbm,
         sensitivity_dbm=receiver.sensitivity,
         overload_dbm=receiver.overload,

@@ -13,6 +13,8 @@ from pydantic import BaseModel, ValidationError
 
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Positions, Problem, load_yaml
+from linkbudget.segments.base import SegmentProblem
+from linkbudget.segments.chain import chain_problems
 from linkbudget.segments.registry import KINDS
 
 #: Largest link file read [bytes]; a link is a few kB of text.
@@ -156,12 +158,21 @@ def parse_link(text, file="<string>", base_dir=None):
         problems += found
         if segment is None:
             continue
+        if spec is not None:
+            try:
+                segment = segment.resolve(spec.wavelengths_m(), Path(base_dir or "."))
+            except SegmentProblem as problem:
+                problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
+                continue
         if segment.name in seen:
             problems.append(positions.problem(
                 ("chain", index, "name"), f"duplicate segment name '{segment.name}'",
                 f"already used by chain[{seen[segment.name]}]; names identify segments in diffs"))
         seen.setdefault(segment.name, index)
         segments.append(segment)
+    if not problems:
+        problems = [positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
+                    for index, problem in chain_problems(segments)]
     if problems:
         raise ConfigError(problems)
     return Link(spec, tuple(segments), file, Path(base_dir or "."), positions)

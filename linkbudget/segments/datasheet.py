@@ -7,9 +7,11 @@ the spread of the datasheet (``{min, typ, max}`` or ``{mean, sigma}``) sets the 
 from typing import Literal
 
 import numpy as np
+from pydantic import PrivateAttr
 
 from linkbudget.config.fields import integer, quantity, spread
 from linkbudget.segments.base import SegmentSpec
+from linkbudget.segments.optics import resolve_index
 
 LossSpread = spread("ratio", minimum=0.0)
 SignedLossSpread = spread("ratio")
@@ -19,7 +21,31 @@ def _flat(value_db, wavelength_m):
     return np.full(np.shape(wavelength_m), value_db, dtype=float)
 
 
-class Connector(SegmentSpec):
+JointType = Literal["physical-contact", "index-matched", "air-gap"]
+
+
+class _Joint(SegmentSpec):
+    """A joint between two segments. When both carry a medium, ``joint`` sets the optics of the faces.
+
+    ``physical-contact`` (default): the two media touch, one bare interface between them
+    (none when their indices are equal); ``index-matched``: gel or adhesive, no Fresnel term;
+    ``air-gap``: two interfaces, medium → air → medium.
+    """
+
+    joint: JointType = "physical-contact"
+    _gap_index: np.ndarray | None = PrivateAttr(default=None)
+
+    def resolve(self, wavelength_m, base_dir):
+        if self.joint == "air-gap":
+            self._gap_index = resolve_index(None, "air", wavelength_m, base_dir, ("joint",))
+        return self
+
+    def gap_index(self):
+        """Index of the medium in an air gap over the wavelength axis, else ``None``."""
+        return self._gap_index
+
+
+class Connector(_Joint):
     """A mated connector pair: insertion ``loss`` and an optional ``return_loss``."""
 
     kind: Literal["connector"]
@@ -30,7 +56,7 @@ class Connector(SegmentSpec):
         return _flat(self.loss.at(case), wavelength_m)
 
 
-class Splice(SegmentSpec):
+class Splice(_Joint):
     """``count`` fusion or mechanical splices, each with insertion ``loss``."""
 
     kind: Literal["splice"]

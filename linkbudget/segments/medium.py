@@ -1,8 +1,9 @@
-"""Bulk absorbing media and fibres: loss through the lossy-medium flux law.
+"""Bulk absorbing media, fibres and free-space gaps: loss through the lossy-medium flux law.
 
-A medium's loss may be written four ways; :func:`absorption_coefficient_per_m` turns every one of them
-into the intensity attenuation coefficient α, and :func:`linkbudget.physics.flux.loss_db`
-turns α and the length into dB. No other code converts a medium's loss.
+A medium's loss may be written several ways; :func:`absorption_coefficient_per_m` turns every
+one of them into the intensity attenuation coefficient α, and
+:func:`linkbudget.physics.flux.loss_db` turns α and the path length into dB. No other code
+converts a medium's loss.
 """
 
 from typing import Literal
@@ -10,9 +11,10 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import ComplexIndex, spread
+from linkbudget.config.fields import spread
 from linkbudget.physics import flux
-from linkbudget.segments.base import SegmentSpec
+from linkbudget.segments.base import SegmentProblem
+from linkbudget.segments.optics import OpticalSegment
 
 LengthSpread = spread("length", minimum=0.0)
 AttenuationSpread = spread("attenuation", minimum=0.0)
@@ -54,59 +56,106 @@ def absorption_coefficient_per_m(wavelength_m, *, kappa=None, absorption_per_m=N
     return np.broadcast_to(flux.absorption_from_attenuation_db_per_m(attenuation_db_per_m), shape)
 
 
-class Fiber(SegmentSpec):
-    """A length of optical fibre with a datasheet ``attenuation`` in dB per length."""
+class Fiber(OpticalSegment):
+    """A length of optical fibre with a datasheet ``attenuation`` in dB per length.
+
+    An optional ``index`` (e.g. the core's effective index) or ``material`` gives it faces, so a
+    joint to a medium of another index has a Fresnel term; fibre-to-fibre joints of the same
+    index have none.
+    """
 
     kind: Literal["fiber"]
     length: LengthSpread
     attenuation: AttenuationSpread
 
-    def loss_db(self, wavelength_m, case):
+    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
         alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
         return flux.loss_db(alpha, self.length.at(case))
 
 
-_LOSS_FORMS = ("index", "kappa", "absorption", "attenuation")
+_BULK_FORMS = ("kappa", "absorption", "attenuation")
 
 
-class Medium(SegmentSpec):
-    """A bulk absorbing medium (window, blank, liquid cell) of a given ``thickness`` or ``length``.
+class _Bulk(OpticalSegment):
+    """An optical segment whose bulk loss is the flux law over an (oblique) path."""
 
-    Its loss is given by exactly one of ``index`` (complex n + iκ), ``kappa``, ``absorption``
-    (α with a unit such as ``/cm``) or ``attenuation`` (dB per length).
+    kappa: KappaSpread | None = None
+    absorption: AbsorptionSpread | None = None
+    attenuation: AttenuationSpread | None = None
+
+    def _check_bulk_forms(self):
+        forms = [key for key in _BULK_FORMS if getattr(self, key) is not None]
+        if len(forms) > 1:
+            raise ValueError(f"give at most one of {', '.join(_BULK_FORMS)} (got {', '.join(forms)})")
+        if forms and self.index is not None and self.index.imag != 0:
+            raise ValueError(f"the complex index already gives kappa; drop {forms[0]} or the imaginary part")
+        return forms
+
+    def absorption_per_m(self, wavelength_m, case):
+        """α [1/m] over the wavelength axis for a budget case: the explicit form, else the medium's κ."""
+        if self.kappa is not None:
+            return absorption_coefficient_per_m(wavelength_m, kappa=self.kappa.at(case))
+        if self.absorption is not None:
+            return absorption_coefficient_per_m(wavelength_m, absorption_per_m=self.absorption.at(case))
+        if self.attenuation is not None:
+            return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
+        return absorption_coefficient_per_m(wavelength_m, kappa=self.medium_index().imag)
+
+    def path_length_m(self, case):
+        raise NotImplementedError
+
+    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
+        return flux.loss_db(self.absorption_per_m(wavelength_m, case), self.path_length_m(case) / cos_inside)
+
+
+class Medium(_Bulk):
+    """A bulk absorbing medium (window, blank, liquid film) of a given ``thickness`` or ``length``.
+
+    Its faces come from ``index`` or ``material``; its bulk loss from their κ or from exactly
+    one of ``kappa``, ``absorption`` (α, e.g. ``0.5 /cm``) or ``attenuation`` (dB per length),
+    which then replaces the material's κ. With ``multiple_reflections: true`` the light bouncing
+    between its two faces is summed incoherently.
     """
 
     kind: Literal["medium"]
     thickness: LengthSpread | None = None
     length: LengthSpread | None = None
-    index: ComplexIndex | None = None
-    kappa: KappaSpread | None = None
-    absorption: AbsorptionSpread | None = None
-    attenuation: AttenuationSpread | None = None
+    multiple_reflections: bool = False
 
     @model_validator(mode="after")
     def _one_of_each(self):
         if (self.thickness is None) == (self.length is None):
             raise ValueError("give exactly one of thickness or length")
-        forms = [key for key in _LOSS_FORMS if getattr(self, key) is not None]
-        if len(forms) != 1:
-            raise ValueError(f"give exactly one of {', '.join(_LOSS_FORMS)}"
-                             + (f" (got {', '.join(forms)})" if forms else ""))
+        forms = self._check_bulk_forms()
+        if not forms and self.index is None and self.material is None:
+            raise ValueError("give its index or material, or its loss as kappa, absorption or attenuation")
         return self
 
-    @property
-    def path_length(self):
-        return self.thickness if self.thickness is not None else self.length
+    def resolve(self, wavelength_m, base_dir):
+        super().resolve(wavelength_m, base_dir)
+        if self.multiple_reflections and self.medium_index() is None:
+            raise SegmentProblem(("multiple_reflections",), "multiple reflections need faces: give index or material")
+        return self
 
-    def absorption_per_m(self, wavelength_m, case):
-        """α [1/m] over the wavelength axis for a budget case."""
-        if self.index is not None:
-            return absorption_coefficient_per_m(wavelength_m, kappa=self.index.imag)
-        if self.kappa is not None:
-            return absorption_coefficient_per_m(wavelength_m, kappa=self.kappa.at(case))
-        if self.absorption is not None:
-            return absorption_coefficient_per_m(wavelength_m, absorption_per_m=self.absorption.at(case))
-        return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
+    def path_length_m(self, case):
+        return (self.thickness if self.thickness is not None else self.length).at(case)
 
-    def loss_db(self, wavelength_m, case):
-        return flux.loss_db(self.absorption_per_m(wavelength_m, case), self.path_length.at(case))
+
+class Gap(_Bulk):
+    """A free-space gap of ``length`` through an ambient medium (``material``/``index``; default air)."""
+
+    kind: Literal["gap"]
+    length: LengthSpread
+
+    @model_validator(mode="after")
+    def _forms(self):
+        self._check_bulk_forms()
+        return self
+
+    def resolve(self, wavelength_m, base_dir):
+        if self.index is None and self.material is None:
+            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, base_dir)
+        return super().resolve(wavelength_m, base_dir)
+
+    def path_length_m(self, case):
+        return self.length.at(case)

@@ -3,12 +3,15 @@
 The loader, the CLI, the JSON schema and the docs all read this table.
 """
 
+from linkbudget.segments.coating import Coating
 from linkbudget.segments.datasheet import Connector, Element, Splice
-from linkbudget.segments.medium import Fiber, Medium
+from linkbudget.segments.medium import Fiber, Gap, Medium
 
 KINDS = {
     "medium": Medium,
+    "coating": Coating,
     "fiber": Fiber,
+    "gap": Gap,
     "connector": Connector,
     "splice": Splice,
     "element": Element,

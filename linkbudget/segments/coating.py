@@ -1,0 +1,77 @@
+"""A thin-film coating between two media, replacing their bare interface.
+
+Its layers are listed in the order the light meets them. The engine evaluates the stack with
+the coherent transfer-matrix method (:func:`linkbudget.physics.thinfilm.coherent_stack`)
+between the media of its two neighbours.
+"""
+
+from typing import Literal
+
+import numpy as np
+from pydantic import Field, PrivateAttr, model_validator
+
+from linkbudget.config.fields import ComplexIndex, Strict, integer, quantity
+from linkbudget.physics.thinfilm import quarter_wave_thickness_m
+from linkbudget.segments.base import SegmentProblem, SegmentSpec
+from linkbudget.segments.optics import MAX_ANGLE_RAD, Polarization, resolve_index
+
+
+class Layer(Strict):
+    """One film: ``material`` or ``index``, and ``thickness`` or ``quarter_wave`` (a design wavelength).
+
+    ``quarter_wave: 1550 nm`` is one optical quarter-wave, λ0/(4·n(λ0)), at that wavelength;
+    ``quarter_waves: 2`` makes it a half-wave.
+    """
+
+    material: str | None = None
+    index: ComplexIndex | None = None
+    thickness: quantity("length", minimum=0.0) | None = None
+    quarter_wave: quantity("length", strictly_positive=True) | None = None
+    quarter_waves: integer(minimum=1) | None = None
+
+    @model_validator(mode="after")
+    def _one_of_each(self):
+        if (self.material is None) == (self.index is None):
+            raise ValueError("a layer needs exactly one of material or index")
+        if (self.thickness is None) == (self.quarter_wave is None):
+            raise ValueError("a layer needs exactly one of thickness or quarter_wave")
+        if self.quarter_waves is not None and self.quarter_wave is None:
+            raise ValueError("quarter_waves counts quarter-waves at a quarter_wave design wavelength")
+        return self
+
+    def resolve(self, wavelength_m, base_dir, key_path):
+        """(index over the wavelength axis, physical thickness [m])."""
+        index = resolve_index(self.index, self.material, wavelength_m, base_dir, key_path)
+        if self.thickness is not None:
+            return index, self.thickness
+        design = resolve_index(self.index, self.material, np.array([self.quarter_wave]), base_dir, key_path)
+        return index, float(quarter_wave_thickness_m(design.real[0], self.quarter_wave,
+                                                     order=self.quarter_waves or 1))
+
+
+class Coating(SegmentSpec):
+    """A thin-film stack on the interface between the segments before and after it."""
+
+    kind: Literal["coating"]
+    layers: list[Layer] = Field(min_length=1)
+    angle: quantity("angle", minimum=0.0) | None = None
+    polarization: Polarization | None = None
+    _stack: tuple | None = PrivateAttr(default=None)
+
+    def resolve(self, wavelength_m, base_dir):
+        if self.angle is not None and self.angle > MAX_ANGLE_RAD:
+            raise SegmentProblem(("angle",), "angle of incidence must be below 89 deg")
+        resolved = [layer.resolve(wavelength_m, base_dir, ("layers", number))
+                    for number, layer in enumerate(self.layers)]
+        self._stack = (np.array([index for index, _ in resolved]), np.array([t for _, t in resolved]))
+        return self
+
+    @property
+    def layer_index(self):
+        """Layer indices, shape (n_layers, n_wavelengths)."""
+        return self._stack[0]
+
+    @property
+    def thickness_m(self):
+        """Physical layer thicknesses [m], shape (n_layers,)."""
+        return self._stack[1]

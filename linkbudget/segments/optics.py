@@ -1,0 +1,76 @@
+"""Segments that carry an optical medium, and the resolution of their materials.
+
+A segment carries a medium when it gives an ``index`` or a ``material``. Between two
+consecutive segments that carry media, the engine inserts the interface (or the coating) between
+them; a segment without a medium is transparent to that logic.
+"""
+
+from typing import Literal
+
+import numpy as np
+
+from pydantic import PrivateAttr
+
+from linkbudget.config.fields import ComplexIndex, quantity
+from linkbudget.materials.dispersion import MaterialRangeError
+from linkbudget.materials.library import MaterialError, load_material
+from linkbudget.segments.base import SegmentProblem, SegmentSpec
+
+Polarization = Literal["s", "p", "unpolarized"]
+
+#: Largest angle of incidence accepted [rad] (grazing incidence carries no flux).
+MAX_ANGLE_RAD = np.deg2rad(89.0)
+
+
+def resolve_index(index, material, wavelength_m, base_dir, key_path=()):
+    """The complex index over the wavelength axis from an ``index`` or a ``material`` key.
+
+    Raises
+    ------
+    SegmentProblem
+        When the material is unknown, malformed, or has no data at a wavelength of the link.
+    """
+    if index is not None:
+        return np.full(np.shape(wavelength_m), index, dtype=complex)
+    try:
+        return load_material(material, base_dir=base_dir).index(wavelength_m)
+    except MaterialRangeError as error:
+        raise SegmentProblem((*key_path, "material"), str(error)) from None
+    except MaterialError as error:
+        raise SegmentProblem((*key_path, "material"), str(error),
+                             "`linkbudget materials` lists the catalog") from None
+
+
+class OpticalSegment(SegmentSpec):
+    """A segment that may carry a medium: ``index`` (n or n+κj) or ``material`` (catalog name or file).
+
+    ``angle`` is the angle of incidence on the segment's entry face, in the medium before it;
+    its faces are taken parallel, so the exit face sees the refracted angle. ``polarization``
+    applies to both faces (default: unpolarized).
+    """
+
+    index: ComplexIndex | None = None
+    material: str | None = None
+    angle: quantity("angle", minimum=0.0) | None = None
+    polarization: Polarization = "unpolarized"
+    _index: np.ndarray | None = PrivateAttr(default=None)
+
+    def resolve(self, wavelength_m, base_dir):
+        problem = None
+        if self.index is not None and self.material is not None:
+            problem = SegmentProblem(("material",), "give index or material, not both")
+        if self.angle is not None and self.angle > MAX_ANGLE_RAD:
+            problem = SegmentProblem(("angle",), "angle of incidence must be below 89 deg")
+        if problem:
+            raise problem
+        if self.index is not None or self.material is not None:
+            self._index = resolve_index(self.index, self.material, wavelength_m, base_dir)
+        return self
+
+    def medium_index(self):
+        """Complex index over the wavelength axis, or ``None`` if the segment carries no medium."""
+        return self._index
+
+    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
+        """Bulk loss; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
+        raise NotImplementedError
