@@ -7,7 +7,7 @@ meet its margin or overload; 2 the input is wrong; 3 an internal error (a bug).
 import sys
 from enum import Enum
 from pathlib import Path
-from typing import Annotated, Optional
+from typing import Annotated
 
 import typer
 
@@ -63,7 +63,7 @@ def _version(value: bool):
 
 @app.callback()
 def _root(
-    version: Annotated[Optional[bool], typer.Option("--version", callback=_version, is_eager=True,
+    version: Annotated[bool | None, typer.Option("--version", callback=_version, is_eager=True,
                                                     help="Print the version and exit.")] = None,
 ):
     """Optical link budgets from physics and datasheets, kept as YAML."""
@@ -98,9 +98,9 @@ def _report_text(result, output_format):
 def run(
     link: Annotated[Path, typer.Argument(help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
-    output: Annotated[Optional[Path], typer.Option("--output", "-o", help="Write to this file instead of the terminal.")] = None,
+    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write to this file instead of the terminal.")] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
-    min_margin: Annotated[Optional[str], typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")] = None,
+    min_margin: Annotated[str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")] = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict."""
     from linkbudget.engine import evaluate
@@ -134,7 +134,7 @@ def _emit(result, output_format, output, force, protected):
 @app.command()
 def check(
     links: Annotated[list[Path], typer.Argument(help="One or more link files.")],
-    min_margin: Annotated[Optional[str], typer.Option("--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")] = None,
+    min_margin: Annotated[str | None, typer.Option("--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")] = None,
 ):
     """The CI gate: one line per link, exit 0 only if every link closes."""
     from linkbudget.config import ConfigError, load_link
@@ -163,6 +163,41 @@ def check(
         fails += not result.closes
     typer.echo(f"{len(links)} link(s): {closes} close, {fails} do not close, {broken} with input errors")
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+@app.command()
+def materials(
+    name: Annotated[str | None, typer.Argument(help="A catalog name or a material file; omit to list the catalog.")] = None,
+    wavelength: Annotated[list[str] | None, typer.Option("--wavelength", "-w", help="Wavelength(s), e.g. '1550nm'.")] = None,
+):
+    """List the material catalog, or show one material's n, κ, α and dB/mm at given wavelengths."""
+    import numpy as np
+    from rich.console import Console
+
+    from linkbudget.materials.dispersion import MaterialRangeError
+    from linkbudget.materials.library import MaterialError, catalog_names, load_material
+    from linkbudget.report.materials import catalog_table, constants_table
+    from linkbudget.units import UnitError, parse_quantity
+
+    try:
+        if name is None:
+            if wavelength:
+                _fail_input("--wavelength needs a material name")
+            Console().print(catalog_table([load_material(entry) for entry in catalog_names()]))
+            return
+        material = load_material(name)
+        if not wavelength:
+            low, high = material.valid_range_m
+            Console().print(f"{material.name}: {material.description}\n"
+                            f"range {low * 1e9:.6g}–{high * 1e9:.6g} nm\nsource: {material.source}\n"
+                            "give --wavelength to see its constants")
+            return
+        wavelength_m = np.array([parse_quantity(text, "length") for text in wavelength])
+        Console().print(constants_table(material, wavelength_m))
+    except UnitError as error:
+        _fail_input(f"--wavelength: {error}" + (f"\n  hint: {error.hint}" if error.hint else ""))
+    except (MaterialError, MaterialRangeError) as error:
+        _fail_input(f"{name}: {error}")
 
 
 def main():

@@ -19,7 +19,10 @@ import numpy as np
 from linkbudget.cautions import CAUTIONS
 from linkbudget.config.fields import CASES
 from linkbudget.physics import fresnel, thinfilm
-from linkbudget.physics.decibel import loss_db_from_transmittance, transmittance_from_loss_db
+from linkbudget.physics.decibel import (
+    loss_db_from_transmittance,
+    transmittance_from_loss_db,
+)
 
 
 @dataclass(frozen=True)

@@ -11,7 +11,13 @@ import re
 from functools import cache
 from typing import Annotated, Any, ClassVar
 
-from pydantic import BaseModel, BeforeValidator, ConfigDict, create_model, model_validator
+from pydantic import (
+    BaseModel,
+    BeforeValidator,
+    ConfigDict,
+    create_model,
+    model_validator,
+)
 
 from linkbudget.units import parse_quantity
 
@@ -24,6 +30,19 @@ CASES = ("typ", "worst", "best")
 
 
 _PLAIN_NUMBER = re.compile(r"^\s*[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?\s*$")
+
+
+class InputProblem(ValueError):
+    """An input problem placed at a key path (relative to the model or segment raising it).
+
+    Raised inside a model validator, the loader extends the error's location by ``key_path``,
+    so the message points at the key that is wrong rather than at its parent.
+    """
+
+    def __init__(self, key_path, message, hint=None):
+        super().__init__(message)
+        self.key_path = tuple(key_path)
+        self.hint = hint
 
 
 class Strict(BaseModel):
@@ -138,8 +157,8 @@ class SpreadBase(Strict):
             return self
         if self.typ is None and not {"min", "max"} <= given:
             raise ValueError("a spread needs typ, or both min and max")
-        if not self.low <= self.typ <= self.high:
-            raise ValueError("a spread must have min <= typ <= max")
+        if not self.low <= self.typ_value <= self.high:
+            raise InputProblem(("max",) if "max" in given else ("typ",), "a spread must have min <= typ <= max")
         return self
 
     @property

@@ -11,9 +11,9 @@ from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
+from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
-from linkbudget.config.source import ConfigError, Positions, Problem, load_yaml
-from linkbudget.segments.base import SegmentProblem
+from linkbudget.config.source import ConfigError, Mark, Positions, Problem, load_yaml
 from linkbudget.segments.chain import chain_problems
 from linkbudget.segments.registry import KINDS
 
@@ -76,12 +76,6 @@ def _written_path(data, loc):
     return tuple(path), node
 
 
-def _message(error):
-    message = error["msg"].removeprefix("Value error, ").removeprefix("Assertion failed, ")
-    cause = error.get("ctx", {}).get("error")
-    return message, getattr(cause, "hint", None)
-
-
 def problems_from_validation(error, positions, model, data, prefix=()):
     """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s."""
     problems = []
@@ -96,12 +90,14 @@ def problems_from_validation(error, positions, model, data, prefix=()):
                 f"allowed keys: {', '.join(allowed)}" if allowed else None)
             problems.append(positions.problem((*prefix, *loc), f"unknown key '{key}'", hint, at_key=True))
             continue
-        path, _ = _written_path(data, loc)
         if item["type"] == "missing":
+            path, _ = _written_path(data, loc)
             problems.append(positions.problem((*prefix, *path), f"missing required key '{loc[-1]}'"))
             continue
-        message, hint = _message(item)
-        problems.append(positions.problem((*prefix, *path), message, hint))
+        cause = item.get("ctx", {}).get("error")
+        path, _ = _written_path(data, loc + getattr(cause, "key_path", ()))
+        message = item["msg"].removeprefix("Value error, ").removeprefix("Assertion failed, ")
+        problems.append(positions.problem((*prefix, *path), message, getattr(cause, "hint", None)))
     return problems
 
 
@@ -110,7 +106,7 @@ def _validate_segment(item, index, positions):
     if not isinstance(item, dict):
         return None, [positions.problem(path, "a chain item must be a mapping with a 'kind'")]
     kind = item.get("kind")
-    if kind not in KINDS:
+    if not isinstance(kind, str) or kind not in KINDS:
         close = difflib.get_close_matches(str(kind), KINDS, n=1)
         hint = f"did you mean '{close[0]}'?" if close else f"kinds: {', '.join(KINDS)}"
         message = "missing required key 'kind'" if kind is None else f"unknown segment kind '{kind}'"
@@ -161,7 +157,7 @@ def parse_link(text, file="<string>", base_dir=None):
         if spec is not None:
             try:
                 segment = segment.resolve(spec.wavelengths_m(), Path(base_dir or "."))
-            except SegmentProblem as problem:
+            except InputProblem as problem:
                 problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
                 continue
         if segment.name in seen:
@@ -190,7 +186,9 @@ def load_link(path):
     except IsADirectoryError:
         raise ConfigError([Problem(str(path), None, (), "is a directory, not a link file")]) from None
     except UnicodeDecodeError as error:
-        raise ConfigError([Problem(str(path), None, (), f"not UTF-8 text ({error.reason})")]) from None
+        before = error.object[: error.start]
+        mark = Mark(before.count(b"\n") + 1, error.start - (before.rfind(b"\n") + 1) + 1)
+        raise ConfigError([Problem(str(path), mark, (), f"not UTF-8 text ({error.reason})")]) from None
     except OSError as error:
         raise ConfigError([Problem(str(path), None, (), f"cannot read: {error.strerror}")]) from None
     return parse_link(text, str(path), path.parent)

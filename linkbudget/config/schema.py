@@ -5,7 +5,7 @@ from typing import Any
 import numpy as np
 from pydantic import Field, model_validator
 
-from linkbudget.config.fields import Strict, quantity, spread
+from linkbudget.config.fields import InputProblem, Strict, quantity, spread
 
 #: Wavelengths a link may carry [m]: the ultraviolet to the far infrared.
 OPTICAL_RANGE_M = (100e-9, 100e-6)
@@ -14,12 +14,11 @@ OPTICAL_RANGE_M = (100e-9, 100e-6)
 MAX_WAVELENGTHS = 100_000
 
 
-def _optical(wavelength_m):
+def _optical(wavelength_m, key_path):
     low, high = OPTICAL_RANGE_M
     if not low <= wavelength_m <= high:
-        raise ValueError(f"{wavelength_m * 1e9:g} nm is outside the optical range "
-                         f"{low * 1e9:g} nm to {high * 1e9:g} nm")
-    return wavelength_m
+        raise InputProblem(key_path, f"{wavelength_m * 1e9:g} nm is outside the optical range "
+                           f"{low * 1e9:g} nm to {high * 1e9:g} nm")
 
 
 Length = quantity("length", strictly_positive=True)
@@ -35,7 +34,7 @@ class Band(Strict):
     @model_validator(mode="after")
     def _ordered(self):
         if self.stop <= self.start:
-            raise ValueError("a band needs from < to")
+            raise InputProblem(("to",), "a band needs from < to")
         if (self.stop - self.start) / self.step + 1 > MAX_WAVELENGTHS:
             raise ValueError(f"the band holds more than {MAX_WAVELENGTHS} wavelengths; use a larger step")
         return self
@@ -63,7 +62,7 @@ class Receiver(Strict):
     @model_validator(mode="after")
     def _overload_above_sensitivity(self):
         if self.overload is not None and self.overload <= self.sensitivity:
-            raise ValueError("overload must be above sensitivity")
+            raise InputProblem(("overload",), "overload must be above sensitivity")
         return self
 
 
@@ -83,9 +82,14 @@ class LinkSpec(Strict):
     def _one_axis(self):
         given = [key for key in ("wavelength", "channels", "band") if getattr(self, key) is not None]
         if len(given) != 1:
-            raise ValueError("give exactly one of wavelength, channels or band")
-        for wavelength_m in self.wavelengths_m():
-            _optical(float(wavelength_m))
+            raise InputProblem(given[1:2], "give exactly one of wavelength, channels or band")
+        if self.wavelength is not None:
+            _optical(self.wavelength, ("wavelength",))
+        for number, wavelength_m in enumerate(self.channels or ()):
+            _optical(wavelength_m, ("channels", number))
+        if self.band is not None:
+            _optical(self.band.start, ("band", "from"))
+            _optical(self.band.stop, ("band", "to"))
         return self
 
     def wavelengths_m(self):

@@ -169,6 +169,11 @@ def load_yaml(text, file="<string>"):
         raise ConfigError([Problem(file, where, (), message, hint)]) from None
     except yaml.YAMLError as error:
         raise ConfigError([Problem(file, None, (), f"YAML error: {error}")]) from None
+    except RecursionError:
+        raise ConfigError([Problem(file, None, (), "the document is nested too deeply")]) from None
     if node is None:
         raise ConfigError([Problem(file, Mark(1, 1), (), "the file is empty")])
-    return _Builder(positions).build(node, ()), positions
+    try:
+        return _Builder(positions).build(node, ()), positions
+    except RecursionError:
+        raise ConfigError([Problem(file, None, (), "the document is nested too deeply")]) from None

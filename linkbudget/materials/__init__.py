@@ -1,6 +1,11 @@
 """Material dispersion models and the shipped catalog of optical constants."""
 
 from linkbudget.materials.dispersion import MaterialRangeError
-from linkbudget.materials.library import Material, MaterialError, catalog_names, load_material
+from linkbudget.materials.library import (
+    Material,
+    MaterialError,
+    catalog_names,
+    load_material,
+)
 
 __all__ = ["Material", "MaterialError", "MaterialRangeError", "catalog_names", "load_material"]

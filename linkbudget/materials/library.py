@@ -34,10 +34,10 @@ import functools
 import math
 import os
 import re
+from collections.abc import Callable
 from dataclasses import dataclass, field
 from importlib import resources
 from pathlib import Path
-from typing import Callable
 
 import numpy as np
 import yaml
@@ -97,7 +97,7 @@ class Material:
         return np.asarray(self.dispersion(wavelength_m), dtype=complex)
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _catalog_names():
     return tuple(sorted(entry.name[: -len(".yaml")] for entry in _CATALOG.iterdir() if entry.name.endswith(".yaml")))
 
@@ -135,7 +135,7 @@ def load_material(name_or_path, *, base_dir=None):
     return _catalog_material(text)
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _catalog_material(name):
     names = _catalog_names()
     if name not in names:

@@ -3,6 +3,8 @@
 Colour is an aid only: every status is also written out.
 """
 
+import math
+
 from rich import box
 from rich.console import Group
 from rich.panel import Panel
@@ -16,7 +18,9 @@ MAX_LISTED_WAVELENGTHS = 8
 
 
 def _db(value, signed=False):
-    if value != value or abs(value) == float("inf"):
+    if math.isnan(value):
+        return "n/a"
+    if math.isinf(value):
         return "blocked" if value > 0 else "-inf"
     return f"{value:+.2f}" if signed else f"{value:.2f}"
 

@@ -3,15 +3,6 @@
 from linkbudget.config.fields import Strict
 
 
-class SegmentProblem(ValueError):
-    """An input problem found while resolving a segment, placed at a key path inside it."""
-
-    def __init__(self, key_path, message, hint=None):
-        super().__init__(message)
-        self.key_path = tuple(key_path)
-        self.hint = hint
-
-
 class SegmentSpec(Strict):
     """A link segment as written in the ``chain`` list.
 
@@ -24,13 +15,13 @@ class SegmentSpec(Strict):
     def resolve(self, wavelength_m, base_dir):
         """Check what needs the wavelength axis or other files (materials); return the segment.
 
-        Raises :class:`SegmentProblem` for input the schema alone cannot judge.
+        Raises :class:`InputProblem` for input the schema alone cannot judge.
         """
         return self
 
     def medium_index(self):
         """Complex index over the wavelength axis of the medium the segment carries, or ``None``."""
-        return None
+        return
 
     def loss_db(self, wavelength_m, case):
         """Loss of the segment in dB over the wavelength axis for a budget case.

@@ -10,9 +10,15 @@ from typing import Literal
 import numpy as np
 from pydantic import Field, PrivateAttr, model_validator
 
-from linkbudget.config.fields import ComplexIndex, Strict, integer, quantity
+from linkbudget.config.fields import (
+    ComplexIndex,
+    InputProblem,
+    Strict,
+    integer,
+    quantity,
+)
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
-from linkbudget.segments.base import SegmentProblem, SegmentSpec
+from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.optics import MAX_ANGLE_RAD, Polarization, resolve_index
 
 
@@ -60,7 +66,7 @@ class Coating(SegmentSpec):
 
     def resolve(self, wavelength_m, base_dir):
         if self.angle is not None and self.angle > MAX_ANGLE_RAD:
-            raise SegmentProblem(("angle",), "angle of incidence must be below 89 deg")
+            raise InputProblem(("angle",), "angle of incidence must be below 89 deg")
         resolved = [layer.resolve(wavelength_m, base_dir, ("layers", number))
                     for number, layer in enumerate(self.layers)]
         self._stack = (np.array([index for index, _ in resolved]), np.array([t for _, t in resolved]))

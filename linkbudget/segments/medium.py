@@ -11,9 +11,8 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import spread
+from linkbudget.config.fields import InputProblem, spread
 from linkbudget.physics import flux
-from linkbudget.segments.base import SegmentProblem
 from linkbudget.segments.optics import OpticalSegment
 
 LengthSpread = spread("length", minimum=0.0)
@@ -86,9 +85,11 @@ class _Bulk(OpticalSegment):
     def _check_bulk_forms(self):
         forms = [key for key in _BULK_FORMS if getattr(self, key) is not None]
         if len(forms) > 1:
-            raise ValueError(f"give at most one of {', '.join(_BULK_FORMS)} (got {', '.join(forms)})")
+            raise InputProblem((forms[1],), f"give at most one of {', '.join(_BULK_FORMS)} "
+                               f"(got {', '.join(forms)})")
         if forms and self.index is not None and self.index.imag != 0:
-            raise ValueError(f"the complex index already gives kappa; drop {forms[0]} or the imaginary part")
+            raise InputProblem((forms[0],), f"the complex index already gives kappa; drop {forms[0]} "
+                               "or the imaginary part")
         return forms
 
     def absorption_per_m(self, wavelength_m, case):
@@ -134,7 +135,7 @@ class Medium(_Bulk):
     def resolve(self, wavelength_m, base_dir):
         super().resolve(wavelength_m, base_dir)
         if self.multiple_reflections and self.medium_index() is None:
-            raise SegmentProblem(("multiple_reflections",), "multiple reflections need faces: give index or material")
+            raise InputProblem(("multiple_reflections",), "multiple reflections need faces: give index or material")
         return self
 
     def path_length_m(self, case):

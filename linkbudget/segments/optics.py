@@ -8,13 +8,12 @@ them; a segment without a medium is transparent to that logic.
 from typing import Literal
 
 import numpy as np
-
 from pydantic import PrivateAttr
 
-from linkbudget.config.fields import ComplexIndex, quantity
+from linkbudget.config.fields import ComplexIndex, InputProblem, quantity
 from linkbudget.materials.dispersion import MaterialRangeError
-from linkbudget.materials.library import MaterialError, load_material
-from linkbudget.segments.base import SegmentProblem, SegmentSpec
+from linkbudget.materials.library import MaterialError, catalog_names, load_material
+from linkbudget.segments.base import SegmentSpec
 
 Polarization = Literal["s", "p", "unpolarized"]
 
@@ -27,7 +26,7 @@ def resolve_index(index, material, wavelength_m, base_dir, key_path=()):
 
     Raises
     ------
-    SegmentProblem
+    InputProblem
         When the material is unknown, malformed, or has no data at a wavelength of the link.
     """
     if index is not None:
@@ -35,10 +34,22 @@ def resolve_index(index, material, wavelength_m, base_dir, key_path=()):
     try:
         return load_material(material, base_dir=base_dir).index(wavelength_m)
     except MaterialRangeError as error:
-        raise SegmentProblem((*key_path, "material"), str(error)) from None
+        raise InputProblem((*key_path, "material"), str(error), _covering_hint(material, wavelength_m)) from None
     except MaterialError as error:
-        raise SegmentProblem((*key_path, "material"), str(error),
+        raise InputProblem((*key_path, "material"), str(error),
                              "`linkbudget materials` lists the catalog") from None
+
+
+def _covering_hint(material, wavelength_m):
+    """Catalog materials of the same family whose data cover every wavelength, as a hint."""
+    family = str(material).split("-")[0]
+    covering = []
+    for name in catalog_names():
+        low, high = load_material(name).valid_range_m
+        same_family = name.split("-")[0] == family and name != material
+        if same_family and low <= wavelength_m.min() and wavelength_m.max() <= high:
+            covering.append(name)
+    return f"catalog materials named {family}-* with data there: {', '.join(covering)}" if covering else None
 
 
 class OpticalSegment(SegmentSpec):
@@ -58,9 +69,9 @@ class OpticalSegment(SegmentSpec):
     def resolve(self, wavelength_m, base_dir):
         problem = None
         if self.index is not None and self.material is not None:
-            problem = SegmentProblem(("material",), "give index or material, not both")
+            problem = InputProblem(("material",), "give index or material, not both")
         if self.angle is not None and self.angle > MAX_ANGLE_RAD:
-            problem = SegmentProblem(("angle",), "angle of incidence must be below 89 deg")
+            problem = InputProblem(("angle",), "angle of incidence must be below 89 deg")
         if problem:
             raise problem
         if self.index is not None or self.material is not None:

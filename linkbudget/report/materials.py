@@ -1,0 +1,34 @@
+"""Terminal tables for the material catalog and for one material's constants at a wavelength."""
+
+from rich import box
+from rich.table import Table
+
+from linkbudget.physics import flux
+
+
+def catalog_table(materials):
+    """Every material with its range, description and source (two lines each)."""
+    table = Table(title="Material catalog", title_justify="left", box=box.SIMPLE_HEAD, show_header=True)
+    table.add_column("name", no_wrap=True)
+    table.add_column("range", no_wrap=True)
+    table.add_column("description and source")
+    for material in materials:
+        low, high = material.valid_range_m
+        table.add_row(material.name, f"{low * 1e9:.6g}–{high * 1e9:.6g} nm",
+                      f"{material.description}\n[dim]{material.source}[/dim]", end_section=True)
+    return table
+
+
+def constants_table(material, wavelength_m):
+    """n, κ, the intensity attenuation coefficient α = 4πκ/λ and the loss per mm at each wavelength."""
+    index = material.index(wavelength_m)
+    alpha_per_m = flux.absorption_coefficient_from_kappa(index.imag, wavelength_m)
+    table = Table(title=f"{material.name}: {material.description}", title_justify="left", box=box.SIMPLE_HEAD,
+                  caption=f"source: {material.source}", caption_justify="left")
+    for header in ("wavelength", "n", "κ", "α (1/cm)", "loss (dB/mm)"):
+        table.add_column(header, justify="right", no_wrap=True)
+    loss_db_per_mm = flux.loss_db(alpha_per_m, 1e-3)
+    for number, wavelength in enumerate(wavelength_m):
+        table.add_row(f"{wavelength * 1e9:.6g} nm", f"{index.real[number]:.6f}", f"{index.imag[number]:.4e}",
+                      f"{alpha_per_m[number] / 100:.4g}", f"{loss_db_per_mm[number]:.4g}")
+    return table
