@@ -11,7 +11,7 @@ to close. The best case (max launch, every loss at its low end) must stay at or 
 receiver's overload.
 """
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
@@ -23,16 +23,7 @@ from linkbudget.physics.decibel import (
     loss_db_from_transmittance,
     transmittance_from_loss_db,
 )
-
-
-@dataclass(frozen=True)
-class Row:
-    """One line of the budget: a segment (or, later, an interface) and its loss per case."""
-
-    name: str
-    kind: str
-    loss_db: dict  # case -> ndarray (n_wavelengths,)
-    detail: dict = field(default_factory=dict)
+from linkbudget.segments.base import Row
 
 
 @dataclass(frozen=True)
@@ -161,14 +152,14 @@ def _joint(upstream, segment, joint, coating, wavelength_m):
         angle, polarization = upstream.exit_angle_rad, upstream.polarization
     if coating is not None:
         return (*_coating(coating, wavelength_m, n_up, n_down, angle, polarization), angle, polarization)
-    kind = "physical-contact" if joint is None else joint.joint
+    kind = "physical-contact" if joint is None else joint.joint_type
     if kind == "index-matched" or (kind == "physical-contact" and np.array_equal(n_up, n_down)):
         return [], 0.0, 0.0, angle, polarization
     if kind == "air-gap":
-        n_air = joint.gap_index()
-        first, reflectance, _ = _face(upstream.segment.name, "air", n_up, n_air, angle, polarization)
-        angle_air = _refracted_angle_rad(n_up, angle, n_air)
-        second, _, back = _face("air", segment.name, n_air, n_down, angle_air, polarization)
+        n_gap, gap_name = joint.gap_medium_index(), f"{joint.name} gap"
+        first, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle, polarization)
+        angle_gap = _refracted_angle_rad(n_up, angle, n_gap)
+        second, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, polarization)
         return [first, second], reflectance, back, angle, polarization
     row, reflectance, back = _face(upstream.segment.name, segment.name, n_up, n_down, angle, polarization)
     return [row], reflectance, back, angle, polarization
@@ -200,15 +191,16 @@ def budget_rows(segments, wavelength_m):
     No interface is added before the first segment or after the last.
     """
     rows, upstream, joint, coating = [], None, None, None
-    for segment in segments:
+    for position, segment in enumerate(segments):
+        neighbours = {"before": segments[position - 1] if position else None,
+                      "after": segments[position + 1] if position + 1 < len(segments) else None}
         if segment.kind == "coating":
             coating = segment
             continue
         index = segment.medium_index()
         if index is None:
             joint = segment if hasattr(segment, "joint") else joint
-            rows.append(Row(segment.name, segment.kind,
-                            {case: segment.loss_db(wavelength_m, case) for case in CASES}))
+            rows.append(segment.budget_row(wavelength_m, **neighbours))
             continue
         back_reflectance, angle, polarization = 0.0, 0.0, segment.polarization
         if upstream is not None:
@@ -220,10 +212,10 @@ def budget_rows(segments, wavelength_m):
         n_before = index if upstream is None else upstream.segment.medium_index()
         inside = _refracted_angle_rad(n_before, angle, index) if segment.angle is not None else 0.0
         with np.errstate(divide="ignore"):
-            bulk = {case: segment.loss_db(wavelength_m, case, cos_inside=np.cos(inside)) for case in CASES}
-        rows.append(Row(segment.name, segment.kind, bulk))
+            bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **neighbours)
+        rows.append(bulk)
         upstream = _Carrier(segment, inside, polarization, back_reflectance,
-                            bulk if getattr(segment, "multiple_reflections", False) else None)
+                            bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
         joint = coating = None
     return tuple(rows)
 

@@ -168,7 +168,7 @@ def parse_link(text, file="<string>", base_dir=None):
         segments.append(segment)
     if not problems:
         problems = [positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
-                    for index, problem in chain_problems(segments)]
+                    for index, problem in chain_problems(segments, spec.wavelengths_m())]
     if problems:
         raise ConfigError(problems)
     return Link(spec, tuple(segments), file, Path(base_dir or "."), positions)

@@ -167,6 +167,11 @@ def load_yaml(text, file="<string>"):
         message = f"YAML syntax error: {error.problem or error.context}"
         hint = "indent with spaces, not tabs" if "\t" in text else None
         raise ConfigError([Problem(file, where, (), message, hint)]) from None
+    except yaml.reader.ReaderError as error:
+        before = text[: error.position]
+        where = Mark(before.count("\n") + 1, error.position - (before.rfind("\n") + 1) + 1)
+        message = f"character {error.character!r} is not allowed in YAML text"
+        raise ConfigError([Problem(file, where, (), message)]) from None
     except yaml.YAMLError as error:
         raise ConfigError([Problem(file, None, (), f"YAML error: {error}")]) from None
     except RecursionError:

@@ -24,6 +24,8 @@ def _by_case(arrays, index=None):
 
 
 def _detail(value):
+    if isinstance(value, dict):
+        return {key: _detail(item) for key, item in value.items()}
     if isinstance(value, np.ndarray):
         return _numbers(value)
     if isinstance(value, float):

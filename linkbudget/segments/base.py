@@ -1,6 +1,49 @@
 """What every segment kind shares: its name and kind keys, and the evaluation contract."""
 
-from linkbudget.config.fields import Strict
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from linkbudget.config.fields import CASES, Strict
+
+#: The ends of a spread a mode's size is evaluated at (a joint's worst case searches them).
+SPREAD_ENDS = ("low", "typ", "high")
+
+
+@dataclass(frozen=True)
+class Row:
+    """One line of the budget: a segment, interface or coating, its loss per case and details."""
+
+    name: str
+    kind: str
+    loss_db: dict  # case -> ndarray (n_wavelengths,)
+    detail: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Mode:
+    """Mode-field radii (1/e² intensity, half the mode field diameter) of a guided mode [m].
+
+    Each attribute maps a spread end (:data:`SPREAD_ENDS`) to an array over the wavelength
+    axis; a circular mode has equal x and y radii.
+    """
+
+    radius_x_m: dict
+    radius_y_m: dict
+
+    @classmethod
+    def circular(cls, radius_m):
+        """A circular mode from end -> radius arrays."""
+        return cls(radius_m, radius_m)
+
+    @classmethod
+    def from_spread(cls, diameter_x, diameter_y, wavelength_m):
+        """A mode from mode-field-diameter spreads (constant over the wavelength axis)."""
+        def radii(spread):
+            values = {"low": spread.low, "typ": spread.typ_value, "high": spread.high}
+            return {end: np.full(np.shape(wavelength_m), value / 2) for end, value in values.items()}
+
+        return cls(radii(diameter_x), radii(diameter_y))
 
 
 class SegmentSpec(Strict):
@@ -22,6 +65,18 @@ class SegmentSpec(Strict):
     def medium_index(self):
         """Complex index over the wavelength axis of the medium the segment carries, or ``None``."""
         return
+
+    def mode(self, wavelength_m):
+        """The guided mode the segment carries (fibre, waveguide) as a :class:`Mode`, or ``None``.
+
+        Joints next to the segment couple to this mode.
+        """
+        return None
+
+    def budget_row(self, wavelength_m, *, before=None, after=None):
+        """The segment's :class:`Row`; ``before``/``after`` are its neighbours in the chain
+        (joints and gaps couple to their modes)."""
+        return Row(self.name, self.kind, {case: self.loss_db(wavelength_m, case) for case in CASES})
 
     def loss_db(self, wavelength_m, case):
         """Loss of the segment in dB over the wavelength axis for a budget case.

@@ -1,55 +1,125 @@
-"""Segments whose loss comes from a datasheet number: connector, splice, element.
+"""Segments whose loss is a datasheet number or follows from a joint's geometry.
 
-A datasheet loss is the same at every wavelength of the link unless the part says otherwise;
-the spread of the datasheet (``{min, typ, max}`` or ``{mean, sigma}``) sets the budget cases.
+``connector`` and ``splice`` are joints: their loss is the datasheet ``loss``, or the Gaussian
+mode overlap of the two sides from the joint's ``offset``, ``tilt`` and ``gap`` and the mode field
+diameters of its neighbours. When both are given the datasheet wins and the geometric estimate is
+shown beside it. ``element`` is a fixed loss or gain. A datasheet loss is the same at every
+wavelength; its spread (``{min, typ, max}`` or ``{mean, sigma}``) sets the budget cases.
 """
 
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr
+from pydantic import PrivateAttr, model_validator
 
-from linkbudget.config.fields import integer, quantity, spread
-from linkbudget.segments.base import SegmentSpec
+from linkbudget.config.fields import (
+    CASES,
+    ComplexIndex,
+    InputProblem,
+    integer,
+    quantity,
+    spread,
+)
+from linkbudget.segments.base import Mode, Row, SegmentSpec
+from linkbudget.segments.coupling import coupling_losses_db
 from linkbudget.segments.optics import resolve_index
 
 LossSpread = spread("ratio", minimum=0.0)
 SignedLossSpread = spread("ratio")
+LengthSpread = spread("length", minimum=0.0)
+AngleSpread = spread("angle", minimum=0.0)
+
+JointType = Literal["physical-contact", "index-matched", "air-gap"]
+
+_GEOMETRY = ("offset", "tilt", "gap", "mode_field_diameter_before", "mode_field_diameter_after")
 
 
 def _flat(value_db, wavelength_m):
     return np.full(np.shape(wavelength_m), value_db, dtype=float)
 
 
-JointType = Literal["physical-contact", "index-matched", "air-gap"]
-
-
 class _Joint(SegmentSpec):
-    """A joint between two segments. When both carry a medium, ``joint`` sets the optics of the faces.
+    """A joint between two segments, from a datasheet ``loss`` or from its geometry.
 
-    ``physical-contact`` (default): the two media touch, one bare interface between them
+    ``joint`` sets the optics of the faces when both neighbours carry a medium:
+    ``physical-contact`` (default without a ``gap``): the media touch, one bare interface
     (none when their indices are equal); ``index-matched``: gel or adhesive, no Fresnel term;
-    ``air-gap``: two interfaces, medium → air → medium.
+    ``air-gap`` (default with a ``gap``): two faces through the gap's medium (``gap_material``
+    or ``gap_index``; air by default). The gap medium's index also sets the diffraction across
+    the gap, and ``tilt`` is measured in it.
     """
 
-    joint: JointType = "physical-contact"
+    loss: LossSpread | None = None
+    joint: JointType | None = None
+    offset: LengthSpread | None = None
+    tilt: AngleSpread | None = None
+    gap: LengthSpread | None = None
+    gap_material: str | None = None
+    gap_index: ComplexIndex | None = None
+    mode_field_diameter_before: LengthSpread | None = None
+    mode_field_diameter_after: LengthSpread | None = None
     _gap_index: np.ndarray | None = PrivateAttr(default=None)
 
-    def resolve(self, wavelength_m, base_dir):
-        if self.joint == "air-gap":
-            self._gap_index = resolve_index(None, "air", wavelength_m, base_dir, ("joint",))
+    @model_validator(mode="after")
+    def _loss_or_geometry(self):
+        if self.loss is None and not self.geometric:
+            raise InputProblem((), "give the datasheet loss, or the joint's geometry "
+                               "(offset, tilt, gap, mode field diameters)")
+        if self.gap_material is not None and self.gap_index is not None:
+            raise InputProblem(("gap_index",), "give gap_material or gap_index, not both")
+        if self.joint == "physical-contact" and self.gap is not None and self.gap.high > 0:
+            raise InputProblem(("joint",), "a physical-contact joint has no gap; use air-gap or index-matched")
         return self
 
-    def gap_index(self):
-        """Index of the medium in an air gap over the wavelength axis, else ``None``."""
+    @property
+    def geometric(self):
+        """The joint gives any geometry to compute its coupling from."""
+        return any(getattr(self, key) is not None for key in _GEOMETRY)
+
+    @property
+    def joint_type(self):
+        if self.joint is not None:
+            return self.joint
+        return "air-gap" if self.gap is not None else "physical-contact"
+
+    def resolve(self, wavelength_m, base_dir):
+        if self.joint_type == "air-gap" or self.gap is not None:
+            material = None if self.gap_index is not None else (self.gap_material or "air")
+            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, base_dir, ("gap",))
+        return self
+
+    def gap_medium_index(self):
+        """Index of the medium in the gap over the wavelength axis, else ``None``."""
         return self._gap_index
+
+    def side_modes(self, wavelength_m, before, after):
+        """(mode before, mode after): the explicit diameters, else the neighbours' modes."""
+        def side(diameter, neighbour):
+            if diameter is not None:
+                return Mode.from_spread(diameter, diameter, wavelength_m)
+            return None if neighbour is None else neighbour.mode(wavelength_m)
+
+        return (side(self.mode_field_diameter_before, before), side(self.mode_field_diameter_after, after))
+
+    def geometric_losses_db(self, wavelength_m, before, after):
+        """Coupling loss per case from the joint's geometry (Gaussian overlap of the two modes)."""
+        mode_before, mode_after = self.side_modes(wavelength_m, before, after)
+        n_gap = 1.0 if self._gap_index is None else np.real(self._gap_index)
+        return coupling_losses_db(wavelength_m, mode_before, mode_after, offset=self.offset, tilt=self.tilt,
+                                  separation=self.gap, n=n_gap)
+
+    def budget_row(self, wavelength_m, *, before=None, after=None):
+        geometric = self.geometric_losses_db(wavelength_m, before, after) if self.geometric else None
+        if self.loss is None:
+            return Row(self.name, self.kind, geometric)
+        datasheet = {case: self.loss_db(wavelength_m, case) for case in CASES}
+        return Row(self.name, self.kind, datasheet, {} if geometric is None else {"geometric_loss_db": geometric})
 
 
 class Connector(_Joint):
-    """A mated connector pair: insertion ``loss`` and an optional ``return_loss``."""
+    """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
 
     kind: Literal["connector"]
-    loss: LossSpread
     return_loss: quantity("ratio", minimum=0.0) | None = None
 
     def loss_db(self, wavelength_m, case):
@@ -57,14 +127,17 @@ class Connector(_Joint):
 
 
 class Splice(_Joint):
-    """``count`` fusion or mechanical splices, each with insertion ``loss``."""
+    """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
 
     kind: Literal["splice"]
-    loss: LossSpread
     count: integer(minimum=1) = 1
 
     def loss_db(self, wavelength_m, case):
         return _flat(self.count * self.loss.at(case), wavelength_m)
+
+    def geometric_losses_db(self, wavelength_m, before, after):
+        return {case: self.count * loss for case, loss in super().geometric_losses_db(
+            wavelength_m, before, after).items()}
 
 
 class Element(SegmentSpec):

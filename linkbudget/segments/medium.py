@@ -11,8 +11,9 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import InputProblem, spread
-from linkbudget.physics import flux
+from linkbudget.config.fields import InputProblem, number, quantity, spread
+from linkbudget.physics import fiber, flux
+from linkbudget.segments.base import SPREAD_ENDS, Mode
 from linkbudget.segments.optics import OpticalSegment
 
 LengthSpread = spread("length", minimum=0.0)
@@ -66,6 +67,31 @@ class Fiber(OpticalSegment):
     kind: Literal["fiber"]
     length: LengthSpread
     attenuation: AttenuationSpread
+    mode_field_diameter: LengthSpread | None = None
+    core_diameter: quantity("length", strictly_positive=True) | None = None
+    numerical_aperture: number(strictly_positive=True) | None = None
+
+    @model_validator(mode="after")
+    def _one_mode_description(self):
+        if self.mode_field_diameter is not None and self.core_diameter is not None:
+            raise InputProblem(("core_diameter",), "give mode_field_diameter or core geometry, not both")
+        if (self.core_diameter is None) != (self.numerical_aperture is None):
+            missing = "numerical_aperture" if self.numerical_aperture is None else "core_diameter"
+            raise InputProblem((), f"core geometry needs both core_diameter and numerical_aperture; add {missing}")
+        return self
+
+    def mode(self, wavelength_m):
+        """The fundamental mode: the datasheet mode field diameter (the same at every wavelength),
+        or Marcuse's Gaussian fit from the core geometry at each wavelength
+        (:func:`linkbudget.physics.fiber.marcuse_mode_field_radius_m`)."""
+        if self.mode_field_diameter is not None:
+            return Mode.from_spread(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
+        if self.core_diameter is None:
+            return None
+        core_radius_m = self.core_diameter / 2
+        v = fiber.v_number(core_radius_m, wavelength_m, numerical_aperture=self.numerical_aperture)
+        radius_m = fiber.marcuse_mode_field_radius_m(core_radius_m, v)
+        return Mode.circular({end: radius_m for end in SPREAD_ENDS})
 
     def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
         alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
@@ -75,7 +101,7 @@ class Fiber(OpticalSegment):
 _BULK_FORMS = ("kappa", "absorption", "attenuation")
 
 
-class _Bulk(OpticalSegment):
+class Bulk(OpticalSegment):
     """An optical segment whose bulk loss is the flux law over an (oblique) path."""
 
     kappa: KappaSpread | None = None
@@ -109,7 +135,7 @@ class _Bulk(OpticalSegment):
         return flux.loss_db(self.absorption_per_m(wavelength_m, case), self.path_length_m(case) / cos_inside)
 
 
-class Medium(_Bulk):
+class Medium(Bulk):
     """A bulk absorbing medium (window, blank, liquid film) of a given ``thickness`` or ``length``.
 
     Its faces come from ``index`` or ``material``; its bulk loss from their κ or from exactly
@@ -140,23 +166,3 @@ class Medium(_Bulk):
 
     def path_length_m(self, case):
         return (self.thickness if self.thickness is not None else self.length).at(case)
-
-
-class Gap(_Bulk):
-    """A free-space gap of ``length`` through an ambient medium (``material``/``index``; default air)."""
-
-    kind: Literal["gap"]
-    length: LengthSpread
-
-    @model_validator(mode="after")
-    def _forms(self):
-        self._check_bulk_forms()
-        return self
-
-    def resolve(self, wavelength_m, base_dir):
-        if self.index is None and self.material is None:
-            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, base_dir)
-        return super().resolve(wavelength_m, base_dir)
-
-    def path_length_m(self, case):
-        return self.length.at(case)

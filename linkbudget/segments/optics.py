@@ -10,10 +10,10 @@ from typing import Literal
 import numpy as np
 from pydantic import PrivateAttr
 
-from linkbudget.config.fields import ComplexIndex, InputProblem, quantity
+from linkbudget.config.fields import CASES, ComplexIndex, InputProblem, quantity
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, catalog_names, load_material
-from linkbudget.segments.base import SegmentSpec
+from linkbudget.segments.base import Row, SegmentSpec
 
 Polarization = Literal["s", "p", "unpolarized"]
 
@@ -82,6 +82,11 @@ class OpticalSegment(SegmentSpec):
         """Complex index over the wavelength axis, or ``None`` if the segment carries no medium."""
         return self._index
 
+    def budget_row(self, wavelength_m, *, before=None, after=None, cos_inside=1.0):
+        """The bulk row; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
+        losses = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
+        return Row(self.name, self.kind, losses)
+
     def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
-        """Bulk loss; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
+        """Bulk loss [dB] over the wavelength axis along a path tilted to cos θ = ``cos_inside``."""
         raise NotImplementedError

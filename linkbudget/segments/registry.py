@@ -5,7 +5,8 @@ The loader, the CLI, the JSON schema and the docs all read this table.
 
 from linkbudget.segments.coating import Coating
 from linkbudget.segments.datasheet import Connector, Element, Splice
-from linkbudget.segments.medium import Fiber, Gap, Medium
+from linkbudget.segments.gap import Gap
+from linkbudget.segments.medium import Fiber, Medium
 
 KINDS = {
     "medium": Medium,

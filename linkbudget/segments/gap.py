@@ -1,0 +1,125 @@
+"""A free-space gap: its ambient medium, atmospheric extinction, and the spreading beam.
+
+The gap's loss is the sum of
+
+- the ambient medium's loss through the flux law (its κ, or ``kappa``/``absorption``/
+  ``attenuation``; an outdoor path's measured extinction in dB per length is an ``attenuation``),
+- or the extinction of the Kim (default) or Kruse model from a ``visibility``,
+- and the beam's coupling loss, when both ends are known: the launched beam is the ``beam``
+  (a ``waist`` at the gap's start, or the ``divergence`` of a collimated source) or else the mode
+  of the segment before the gap; the receiving side is an ``aperture`` (the power inside it) or
+  else the mode of the segment after the gap (overlap after propagation, with optional
+  ``offset`` and ``tilt`` at the receiving end).
+"""
+
+from typing import Literal
+
+import numpy as np
+from pydantic import model_validator
+
+from linkbudget.config.fields import CASES, InputProblem, Strict, spread
+from linkbudget.physics import atmosphere, flux, gaussian
+from linkbudget.segments.base import Mode, Row
+from linkbudget.segments.coupling import aperture_losses_db, coupling_losses_db
+from linkbudget.segments.medium import Bulk, LengthSpread, absorption_coefficient_per_m
+
+AngleSpread = spread("angle", minimum=0.0)
+PositiveLengthSpread = spread("length", strictly_positive=True)
+PositiveAngleSpread = spread("angle", strictly_positive=True)
+
+#: Visibility models, by name (each a published model of :mod:`linkbudget.physics.atmosphere`).
+VISIBILITY_MODELS = {
+    "kim": atmosphere.kim_attenuation_db_per_km,
+    "kruse": atmosphere.kruse_attenuation_db_per_km,
+}
+
+
+class Beam(Strict):
+    """The beam launched into a gap: its ``waist`` radius at the gap's start (1/e² intensity), or
+    the far-field ``divergence`` half-angle of a collimated source (its waist is then λ/(π·n·θ))."""
+
+    waist: PositiveLengthSpread | None = None
+    divergence: PositiveAngleSpread | None = None
+
+    @model_validator(mode="after")
+    def _one(self):
+        if (self.waist is None) == (self.divergence is None):
+            raise InputProblem((), "give the beam's waist or its divergence")
+        return self
+
+    def mode(self, wavelength_m, n):
+        """The launched beam as a circular :class:`Mode` (waist radii at the spread ends)."""
+        if self.waist is not None:
+            values = {"low": self.waist.low, "typ": self.waist.typ_value, "high": self.waist.high}
+            return Mode.circular({end: np.full(np.shape(wavelength_m), value) for end, value in values.items()})
+        angle = {"low": self.divergence.high, "typ": self.divergence.typ_value, "high": self.divergence.low}
+        return Mode.circular({end: gaussian.waist_from_divergence_m(value, wavelength_m, n=n)
+                              for end, value in angle.items()})
+
+
+class Gap(Bulk):
+    """A free-space gap of ``length`` through an ambient medium (``material``/``index``; default air)."""
+
+    kind: Literal["gap"]
+    length: LengthSpread
+    visibility: PositiveLengthSpread | None = None
+    visibility_model: Literal["kim", "kruse"] = "kim"
+    beam: Beam | None = None
+    aperture: PositiveLengthSpread | None = None
+    offset: LengthSpread | None = None
+    tilt: AngleSpread | None = None
+
+    @model_validator(mode="after")
+    def _forms(self):
+        forms = self._check_bulk_forms()
+        if self.visibility is not None and forms:
+            raise InputProblem(("visibility",), f"give the extinction as {forms[0]} or as visibility, not both")
+        if self.aperture is not None and (self.offset is not None or self.tilt is not None):
+            raise InputProblem(("aperture",), "offset and tilt apply to coupling into a mode, not to an aperture")
+        return self
+
+    def resolve(self, wavelength_m, base_dir):
+        if self.index is None and self.material is None:
+            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, base_dir)
+        return super().resolve(wavelength_m, base_dir)
+
+    def path_length_m(self, case):
+        return self.length.at(case)
+
+    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
+        """Ambient loss through the flux law, with the visibility model's extinction if given."""
+        if self.visibility is None:
+            return super().loss_db(wavelength_m, case, cos_inside=cos_inside)
+        model = VISIBILITY_MODELS[self.visibility_model]
+        visibility_m = self.visibility.at(case, larger_hurts=False)
+        alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=model(visibility_m, wavelength_m) / 1e3)
+        return flux.loss_db(alpha, self.path_length_m(case) / cos_inside)
+
+    def launched_mode(self, wavelength_m, before):
+        """The beam entering the gap: its ``beam``, else the mode of the segment before it."""
+        if self.beam is not None:
+            return self.beam.mode(wavelength_m, np.real(self.medium_index()))
+        return None if before is None else before.mode(wavelength_m)
+
+    def beam_losses_db(self, wavelength_m, before, after):
+        """Beam coupling loss per case, or ``None`` when an end of the beam is not known."""
+        launched = self.launched_mode(wavelength_m, before)
+        n = np.real(self.medium_index())
+        if launched is None:
+            return None
+        if self.aperture is not None:
+            return aperture_losses_db(wavelength_m, launched, distance=self.length,
+                                      aperture_diameter=self.aperture, n=n)
+        received = None if after is None else after.mode(wavelength_m)
+        if received is None:
+            return None
+        return coupling_losses_db(wavelength_m, launched, received, offset=self.offset, tilt=self.tilt,
+                                  separation=self.length, n=n)
+
+    def budget_row(self, wavelength_m, *, before=None, after=None, cos_inside=1.0):
+        ambient = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
+        beam = self.beam_losses_db(wavelength_m, before, after)
+        if beam is None:
+            return Row(self.name, self.kind, ambient, {"beam": "not evaluated: no launched beam or receiving side"})
+        total = {case: ambient[case] + beam[case] for case in CASES}
+        return Row(self.name, self.kind, total, {"ambient_loss_db": ambient, "beam_loss_db": beam})

@@ -1,0 +1,144 @@
+"""An on-chip waveguide: propagation loss over its length, plus bends and crossings.
+
+The loss of a waveguide is one budget row, the sum of three parts
+(:meth:`Waveguide.loss_parts_db` gives them separately):
+
+- ``propagation``: the flux law over ``length``, from a datasheet ``attenuation`` in dB per
+  length or from the imaginary part κ_eff of the mode's complex ``effective_index``,
+  α = 4πκ_eff/λ, through :func:`linkbudget.segments.medium.absorption_coefficient_per_m`;
+- ``bends``: ``bends.count`` times the loss of one bend;
+- ``crossings``: ``crossings.count`` times the loss of one crossing.
+
+``effective_index`` describes the guided mode, not the faces: the waveguide has faces (and the
+engine a Fresnel row at each joint to another medium) only when it gives ``index`` or
+``material``, as a fibre does. So how the propagation loss is written never adds or removes an
+interface row.
+"""
+
+from typing import Literal
+
+from pydantic import model_validator
+
+from linkbudget.config.fields import ComplexIndex, InputProblem, Strict, integer, spread
+from linkbudget.physics import flux
+from linkbudget.segments.base import Mode
+from linkbudget.segments.datasheet import LossSpread, _flat
+from linkbudget.segments.medium import (
+    AttenuationSpread,
+    LengthSpread,
+    absorption_coefficient_per_m,
+)
+from linkbudget.segments.optics import OpticalSegment
+
+#: A mode-field diameter (1/e² intensity) written as a length spread.
+DiameterSpread = spread("length", strictly_positive=True)
+
+
+class CountedLoss(Strict):
+    """``count`` identical features (bends, crossings), each with insertion ``loss``."""
+
+    count: integer(minimum=0)
+    loss: LossSpread
+
+    def loss_db(self, case):
+        """Total loss of the features [dB] for a budget case."""
+        return self.count * self.loss.at(case)
+
+
+class ModeSize(Strict):
+    """A rectangular guide's mode: 1/e² intensity mode-field diameters along x and y."""
+
+    width: DiameterSpread
+    height: DiameterSpread
+
+
+def _check_diameter(diameter, key_path):
+    if diameter.low <= 0:
+        raise InputProblem(key_path, "a mode-field diameter must stay > 0 at the low end of its spread "
+                           f"(got {diameter.low:g} m)", "for {mean, sigma}, mean - 3 sigma must be > 0")
+
+
+class Waveguide(OpticalSegment):
+    """An on-chip waveguide of ``length`` with its propagation loss, bends and crossings.
+
+    Give exactly one of ``attenuation`` (dB per length, spread allowed, e.g. ``2 dB/cm``) or
+    ``effective_index`` (the mode's complex effective index n_eff + κ_eff j, e.g.
+    ``2.4+1.2e-5j``; only κ_eff enters the loss). ``bends`` and ``crossings`` are each
+    ``{count, loss}``. The mode size for the joints next to it is ``mode_field_diameter``
+    (circular) or ``mode_size: {width, height}``, at most one. ``index``/``material`` give the
+    faces (see the module docstring); ``angle`` tilts the entry face but does not lengthen the
+    guided path.
+    """
+
+    kind: Literal["waveguide"]
+    length: LengthSpread
+    attenuation: AttenuationSpread | None = None
+    effective_index: ComplexIndex | None = None
+    bends: CountedLoss | None = None
+    crossings: CountedLoss | None = None
+    mode_field_diameter: DiameterSpread | None = None
+    mode_size: ModeSize | None = None
+
+    @model_validator(mode="after")
+    def _one_of_each(self):
+        if self.attenuation is None and self.effective_index is None:
+            raise ValueError("give its propagation loss as attenuation (e.g. 2 dB/cm) or effective_index "
+                             "(e.g. 2.4+1.2e-5j)")
+        if self.attenuation is not None and self.effective_index is not None:
+            raise InputProblem(("effective_index",), "give attenuation or effective_index, not both")
+        if self.mode_field_diameter is not None and self.mode_size is not None:
+            raise InputProblem(("mode_size",), "give mode_field_diameter or mode_size, not both")
+        if self.mode_field_diameter is not None:
+            _check_diameter(self.mode_field_diameter, ("mode_field_diameter",))
+        if self.mode_size is not None:
+            _check_diameter(self.mode_size.width, ("mode_size", "width"))
+            _check_diameter(self.mode_size.height, ("mode_size", "height"))
+        return self
+
+    def loss_parts_db(self, wavelength_m, case):
+        """The parts of the loss [dB] over the wavelength axis for a budget case.
+
+        Parameters
+        ----------
+        wavelength_m : numpy.ndarray
+            Vacuum wavelengths [m].
+        case : str
+            One of :data:`linkbudget.config.fields.CASES`.
+
+        Returns
+        -------
+        dict
+            ``{"propagation", "bends", "crossings"}`` -> loss [dB] arrays shaped like
+            ``wavelength_m`` (zero for a part not given).
+
+        Notes
+        -----
+        Propagation: 10·log10(e)·α·L with α = 4πκ_eff/λ or α = A/(10·log10 e) for an
+        attenuation A [1]_.
+
+        References
+        ----------
+        .. [1] M. Born and E. Wolf, "Principles of Optics", 7th ed., 1999 (flux in absorbing
+           media; section from memory).
+        """
+        if self.effective_index is not None:
+            alpha = absorption_coefficient_per_m(wavelength_m, kappa=self.effective_index.imag)
+        else:
+            alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
+        counted = {"bends": self.bends, "crossings": self.crossings}
+        return {
+            "propagation": flux.loss_db(alpha, self.length.at(case)),
+            **{part: _flat(0.0 if features is None else features.loss_db(case), wavelength_m)
+               for part, features in counted.items()},
+        }
+
+    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
+        """Sum of :meth:`loss_parts_db`; ``cos_inside`` is ignored (the mode follows the guide)."""
+        return sum(self.loss_parts_db(wavelength_m, case).values())
+
+    def mode(self, wavelength_m):
+        if self.mode_field_diameter is not None:
+            return Mode.from_spread(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
+        if self.mode_size is not None:
+            return Mode.from_spread(self.mode_size.width, self.mode_size.height, wavelength_m)
+        return None
