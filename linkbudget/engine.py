@@ -11,6 +11,7 @@ to close. The best case (max launch, every loss at its low end) must stay at or 
 receiver's overload.
 """
 
+import warnings
 from dataclasses import dataclass
 from functools import cached_property
 
@@ -23,6 +24,7 @@ from linkbudget.physics.decibel import (
     loss_db_from_transmittance,
     transmittance_from_loss_db,
 )
+from linkbudget.physics.validity import ValidityWarning
 from linkbudget.segments.base import Row
 
 
@@ -38,6 +40,7 @@ class LinkResult:
     sensitivity_dbm: float
     overload_dbm: float | None
     required_margin_db: float
+    notes: tuple = ()  # warnings of models used outside their stated validity, by row
     cautions: tuple = CAUTIONS
 
     @cached_property
@@ -189,35 +192,46 @@ def budget_rows(segments, wavelength_m):
     of a connector or splice between them says (index-matched: nothing; air gap: two faces).
     A medium's ``angle`` tilts both of its (parallel) faces and lengthens its path by 1/cos θ.
     No interface is added before the first segment or after the last.
+
+    Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised while
+    evaluating each segment, prefixed by its name.
     """
-    rows, upstream, joint, coating = [], None, None, None
+    rows, upstream, joint, coating, notes = [], None, None, None, []
     for position, segment in enumerate(segments):
-        neighbours = {"before": segments[position - 1] if position else None,
-                      "after": segments[position + 1] if position + 1 < len(segments) else None}
-        if segment.kind == "coating":
-            coating = segment
-            continue
-        index = segment.medium_index()
-        if index is None:
-            joint = segment if hasattr(segment, "joint") else joint
-            rows.append(segment.budget_row(wavelength_m, **neighbours))
-            continue
-        back_reflectance, angle, polarization = 0.0, 0.0, segment.polarization
-        if upstream is not None:
-            joint_rows, reflectance, back_reflectance, angle, polarization = _joint(
-                upstream, segment, joint, coating, wavelength_m)
-            rows += joint_rows
-            if upstream.single_pass_db is not None:
-                rows.append(_multiple_reflections_row(upstream, reflectance))
-        n_before = index if upstream is None else upstream.segment.medium_index()
-        inside = _refracted_angle_rad(n_before, angle, index) if segment.angle is not None else 0.0
-        with np.errstate(divide="ignore"):
-            bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **neighbours)
-        rows.append(bulk)
-        upstream = _Carrier(segment, inside, polarization, back_reflectance,
-                            bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
-        joint = coating = None
-    return tuple(rows)
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", ValidityWarning)
+            upstream, joint, coating = _add_segment_rows(
+                rows, segments, position, wavelength_m, upstream, joint, coating)
+        notes += [f"{segment.name}: {message}" for message in dict.fromkeys(str(w.message) for w in caught)]
+    return tuple(rows), tuple(notes)
+
+
+def _add_segment_rows(rows, segments, position, wavelength_m, upstream, joint, coating):
+    """Append the rows of ``segments[position]`` (and the faces before it); return the new state."""
+    segment = segments[position]
+    neighbours = {"before": segments[position - 1] if position else None,
+                  "after": segments[position + 1] if position + 1 < len(segments) else None}
+    if segment.kind == "coating":
+        return upstream, joint, segment
+    index = segment.medium_index()
+    if index is None:
+        rows.append(segment.budget_row(wavelength_m, **neighbours))
+        return upstream, segment if hasattr(segment, "joint") else joint, coating
+    back_reflectance, angle, polarization = 0.0, 0.0, segment.polarization
+    if upstream is not None:
+        joint_rows, reflectance, back_reflectance, angle, polarization = _joint(
+            upstream, segment, joint, coating, wavelength_m)
+        rows.extend(joint_rows)
+        if upstream.single_pass_db is not None:
+            rows.append(_multiple_reflections_row(upstream, reflectance))
+    n_before = index if upstream is None else upstream.segment.medium_index()
+    inside = _refracted_angle_rad(n_before, angle, index) if segment.angle is not None else 0.0
+    with np.errstate(divide="ignore"):
+        bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **neighbours)
+    rows.append(bulk)
+    upstream = _Carrier(segment, inside, polarization, back_reflectance,
+                        bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
+    return upstream, None, None
 
 
 def evaluate(link, *, required_margin_db=None):
@@ -236,6 +250,7 @@ def evaluate(link, *, required_margin_db=None):
     """
     spec = link.spec
     wavelength_m = spec.wavelengths_m()
+    rows, notes = budget_rows(link.segments, wavelength_m)
     power = spec.source.power
     source_dbm = {case: np.full(wavelength_m.shape, power.at(case, larger_hurts=False)) for case in CASES}
     receiver = spec.receiver
@@ -243,7 +258,8 @@ def evaluate(link, *, required_margin_db=None):
         title=spec.title,
         file=link.file,
         wavelength_m=wavelength_m,
-        rows=budget_rows(link.segments, wavelength_m),
+        rows=rows,
+        notes=notes,
         source_dbm=source_dbm,
         sensitivity_dbm=receiver.sensitivity,
         overload_dbm=receiver.overload,

@@ -69,5 +69,6 @@ def result_dict(result):
         "margin_ok": result.margin_ok,
         "overload_ok": result.overload_ok,
         "closes": result.closes,
+        "notes": list(result.notes),
         "cautions": list(result.cautions),
     }

@@ -31,5 +31,6 @@ def render(result):
         [[nm(wavelength), _cell(result.received_dbm["typ"][i]), _cell(result.received_dbm["worst"][i]),
           _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i])]
          for i, wavelength in enumerate(result.wavelength_m)])
+    lines += [""] + [f"- note: {note}" for note in result.notes]
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
     return "\n".join(lines)

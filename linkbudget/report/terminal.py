@@ -80,4 +80,5 @@ def render(result):
     if result.wavelength_m.size > 1:
         parts.append(Text(f"(the table shows the wavelength with the least worst-case margin; "
                           f"the link carries {result.wavelength_m.size})", style="dim"))
-    return Group(*parts, margin_table(result), summary, cautions)
+    notes = [Text(f"note: {note}", style="yellow") for note in result.notes]
+    return Group(*parts, margin_table(result), summary, *notes, cautions)

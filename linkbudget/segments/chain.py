@@ -1,6 +1,9 @@
 """Rules on the order of segments that no single segment can check."""
 
+import warnings
+
 from linkbudget.config.fields import InputProblem
+from linkbudget.physics.validity import ValidityWarning
 
 
 def _neighbours(segments, position):
@@ -46,6 +49,8 @@ def chain_problems(segments, wavelength_m):
     the modes of both sides; a gap's launched beam needs a receiving side.
     """
     carries = [segment.medium_index() is not None for segment in segments]
-    found = ((position, _segment_problem(segments, position, carries, wavelength_m))
-             for position in range(len(segments)))
+    with warnings.catch_warnings():  # validity warnings are reported when the link is evaluated
+        warnings.simplefilter("ignore", ValidityWarning)
+        found = [(position, _segment_problem(segments, position, carries, wavelength_m))
+                 for position in range(len(segments))]
     return [(position, problem) for position, problem in found if problem is not None]
