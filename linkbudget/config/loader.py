@@ -15,7 +15,6 @@ from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Positions, Problem, load_yaml
 from linkbudget.segments.chain import chain_problems
-from linkbudget.segments.registry import KINDS
 
 #: Largest link file read [bytes]; a link is a few kB of text.
 MAX_FILE_BYTES = 5_000_000
@@ -102,6 +101,10 @@ def problems_from_validation(error, positions, model, data, prefix=()):
 
 
 def _validate_segment(item, index, positions):
+    from linkbudget.segments.registry import (
+        KINDS,  # here: the segment kinds import the config fields
+    )
+
     path = ("chain", index)
     if not isinstance(item, dict):
         return None, [positions.problem(path, "a chain item must be a mapping with a 'kind'")]

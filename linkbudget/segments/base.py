@@ -4,7 +4,24 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from linkbudget.config.fields import CASES, Strict
+from linkbudget.config.fields import CASES, Strict, spread
+
+#: The spread types the segment kinds share (one definition each).
+LossSpread = spread("ratio", minimum=0.0)
+SignedLossSpread = spread("ratio")
+LengthSpread = spread("length", minimum=0.0)
+PositiveLengthSpread = spread("length", strictly_positive=True)
+AngleSpread = spread("angle", minimum=0.0)
+PositiveAngleSpread = spread("angle", strictly_positive=True)
+AttenuationSpread = spread("attenuation", minimum=0.0)
+AbsorptionSpread = spread("absorption", minimum=0.0)
+KappaSpread = spread("number", minimum=0.0)
+
+
+def flat_over_wavelength(value_db, wavelength_m):
+    """A value that is the same at every wavelength, as an array over the wavelength axis."""
+    return np.full(np.shape(wavelength_m), value_db, dtype=float)
+
 
 #: The ends of a spread a mode's size is evaluated at (a joint's worst case searches them).
 SPREAD_ENDS = ("low", "typ", "high")
@@ -76,7 +93,19 @@ class SegmentSpec(Strict):
     def budget_row(self, wavelength_m, *, before=None, after=None):
         """The segment's :class:`Row`; ``before``/``after`` are its neighbours in the chain
         (joints and gaps couple to their modes)."""
-        return Row(self.name, self.kind, {case: self.loss_db(wavelength_m, case) for case in CASES})
+        losses = {case: self.loss_db(wavelength_m, case) for case in CASES}
+        return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
+
+    def row_detail(self, wavelength_m):
+        """Extra facts for the report: the parts of the loss per case, where a kind has parts."""
+        parts = {case: self.loss_parts_db(wavelength_m, case) for case in CASES}
+        if parts["typ"] is None:
+            return {}
+        return {"loss_parts_db": {part: {case: parts[case][part] for case in CASES} for part in parts["typ"]}}
+
+    def loss_parts_db(self, wavelength_m, case):
+        """The loss split into named parts (part -> array), or ``None`` for a single-part loss."""
+        return None
 
     def loss_db(self, wavelength_m, case):
         """Loss of the segment in dB over the wavelength axis for a budget case.

@@ -18,24 +18,24 @@ from linkbudget.config.fields import (
     InputProblem,
     integer,
     quantity,
-    spread,
 )
-from linkbudget.segments.base import Mode, Row, SegmentSpec
+from linkbudget.segments.base import (
+    AngleSpread,
+    LengthSpread,
+    LossSpread,
+    Mode,
+    Row,
+    SegmentSpec,
+    SignedLossSpread,
+    flat_over_wavelength,
+)
 from linkbudget.segments.coupling import coupling_losses_db
 from linkbudget.segments.optics import resolve_index
-
-LossSpread = spread("ratio", minimum=0.0)
-SignedLossSpread = spread("ratio")
-LengthSpread = spread("length", minimum=0.0)
-AngleSpread = spread("angle", minimum=0.0)
 
 JointType = Literal["physical-contact", "index-matched", "air-gap"]
 
 _GEOMETRY = ("offset", "tilt", "gap", "mode_field_diameter_before", "mode_field_diameter_after")
 
-
-def _flat(value_db, wavelength_m):
-    return np.full(np.shape(wavelength_m), value_db, dtype=float)
 
 
 class _Joint(SegmentSpec):
@@ -123,7 +123,7 @@ class Connector(_Joint):
     return_loss: quantity("ratio", minimum=0.0) | None = None
 
     def loss_db(self, wavelength_m, case):
-        return _flat(self.loss.at(case), wavelength_m)
+        return flat_over_wavelength(self.loss.at(case), wavelength_m)
 
 
 class Splice(_Joint):
@@ -133,7 +133,7 @@ class Splice(_Joint):
     count: integer(minimum=1) = 1
 
     def loss_db(self, wavelength_m, case):
-        return _flat(self.count * self.loss.at(case), wavelength_m)
+        return flat_over_wavelength(self.count * self.loss.at(case), wavelength_m)
 
     def geometric_losses_db(self, wavelength_m, before, after):
         return {case: self.count * loss for case, loss in super().geometric_losses_db(
@@ -148,4 +148,4 @@ class Element(SegmentSpec):
     note: str | None = None
 
     def loss_db(self, wavelength_m, case):
-        return _flat(self.loss.at(case), wavelength_m)
+        return flat_over_wavelength(self.loss.at(case), wavelength_m)

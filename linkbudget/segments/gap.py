@@ -17,15 +17,18 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import CASES, InputProblem, Strict, spread
+from linkbudget.config.fields import CASES, InputProblem, Strict
 from linkbudget.physics import atmosphere, flux, gaussian
-from linkbudget.segments.base import Mode, Row
+from linkbudget.segments.base import (
+    AngleSpread,
+    LengthSpread,
+    Mode,
+    PositiveAngleSpread,
+    PositiveLengthSpread,
+    Row,
+)
 from linkbudget.segments.coupling import aperture_losses_db, coupling_losses_db
-from linkbudget.segments.medium import Bulk, LengthSpread, absorption_coefficient_per_m
-
-AngleSpread = spread("angle", minimum=0.0)
-PositiveLengthSpread = spread("length", strictly_positive=True)
-PositiveAngleSpread = spread("angle", strictly_positive=True)
+from linkbudget.segments.medium import Bulk, absorption_coefficient_per_m
 
 #: Visibility models, by name (each a published model of :mod:`linkbudget.physics.atmosphere`).
 VISIBILITY_MODELS = {

@@ -11,15 +11,17 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import InputProblem, number, quantity, spread
+from linkbudget.config.fields import InputProblem, number, quantity
 from linkbudget.physics import fiber, flux
-from linkbudget.segments.base import SPREAD_ENDS, Mode
+from linkbudget.segments.base import (
+    SPREAD_ENDS,
+    AbsorptionSpread,
+    AttenuationSpread,
+    KappaSpread,
+    LengthSpread,
+    Mode,
+)
 from linkbudget.segments.optics import OpticalSegment
-
-LengthSpread = spread("length", minimum=0.0)
-AttenuationSpread = spread("attenuation", minimum=0.0)
-AbsorptionSpread = spread("absorption", minimum=0.0)
-KappaSpread = spread("number", minimum=0.0)
 
 
 def absorption_coefficient_per_m(wavelength_m, *, kappa=None, absorption_per_m=None, attenuation_db_per_m=None):

@@ -85,7 +85,7 @@ class OpticalSegment(SegmentSpec):
     def budget_row(self, wavelength_m, *, before=None, after=None, cos_inside=1.0):
         """The bulk row; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
         losses = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
-        return Row(self.name, self.kind, losses)
+        return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
 
     def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
         """Bulk loss [dB] over the wavelength axis along a path tilted to cos θ = ``cos_inside``."""

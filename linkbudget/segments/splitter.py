@@ -17,8 +17,7 @@ from pydantic import BeforeValidator, Field, model_validator
 
 from linkbudget.config.fields import InputProblem, integer
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
-from linkbudget.segments.base import SegmentSpec
-from linkbudget.segments.datasheet import LossSpread, _flat
+from linkbudget.segments.base import LossSpread, SegmentSpec, flat_over_wavelength
 
 _NUMBER = r"[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?"
 _RATIO = re.compile(rf"^\s*(?P<a>{_NUMBER})\s*(/\s*(?P<b>{_NUMBER})\s*)?$")
@@ -93,6 +92,9 @@ class Splitter(SegmentSpec):
             return 1
         return self.port
 
+    def row_detail(self, wavelength_m):
+        return {**super().row_detail(wavelength_m), "port": self.followed_port}
+
     def loss_parts_db(self, wavelength_m, case):
         """The parts of the loss [dB] over the wavelength axis for a budget case.
 
@@ -107,7 +109,7 @@ class Splitter(SegmentSpec):
             split_db = tap_loss_db(self.ratio[self.followed_port - 1] / sum(self.ratio))
         else:
             split_db = tap_loss_db(self.ratio)
-        return {"split": _flat(split_db, wavelength_m), "excess": _flat(self.excess_loss.at(case), wavelength_m)}
+        return {"split": flat_over_wavelength(split_db, wavelength_m), "excess": flat_over_wavelength(self.excess_loss.at(case), wavelength_m)}
 
     def loss_db(self, wavelength_m, case):
         return sum(self.loss_parts_db(wavelength_m, case).values())

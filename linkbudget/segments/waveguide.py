@@ -19,19 +19,18 @@ from typing import Literal
 
 from pydantic import model_validator
 
-from linkbudget.config.fields import ComplexIndex, InputProblem, Strict, integer, spread
+from linkbudget.config.fields import ComplexIndex, InputProblem, Strict, integer
 from linkbudget.physics import flux
-from linkbudget.segments.base import Mode
-from linkbudget.segments.datasheet import LossSpread, _flat
-from linkbudget.segments.medium import (
+from linkbudget.segments.base import (
     AttenuationSpread,
     LengthSpread,
-    absorption_coefficient_per_m,
+    LossSpread,
+    Mode,
+    PositiveLengthSpread,
+    flat_over_wavelength,
 )
+from linkbudget.segments.medium import absorption_coefficient_per_m
 from linkbudget.segments.optics import OpticalSegment
-
-#: A mode-field diameter (1/e² intensity) written as a length spread.
-DiameterSpread = spread("length", strictly_positive=True)
 
 
 class CountedLoss(Strict):
@@ -48,8 +47,8 @@ class CountedLoss(Strict):
 class ModeSize(Strict):
     """A rectangular guide's mode: 1/e² intensity mode-field diameters along x and y."""
 
-    width: DiameterSpread
-    height: DiameterSpread
+    width: PositiveLengthSpread
+    height: PositiveLengthSpread
 
 
 def _check_diameter(diameter, key_path):
@@ -63,7 +62,7 @@ class Waveguide(OpticalSegment):
 
     Give exactly one of ``attenuation`` (dB per length, spread allowed, e.g. ``2 dB/cm``) or
     ``effective_index`` (the mode's complex effective index n_eff + κ_eff j, e.g.
-    ``2.4+1.2e-5j``; only κ_eff enters the loss). ``bends`` and ``crossings`` are each
+    ``2.4+1.2e-5j``; one value, only κ_eff enters the loss). ``bends`` and ``crossings`` are each
     ``{count, loss}``. The mode size for the joints next to it is ``mode_field_diameter``
     (circular) or ``mode_size: {width, height}``, at most one. ``index``/``material`` give the
     faces (see the module docstring); ``angle`` tilts the entry face but does not lengthen the
@@ -76,7 +75,7 @@ class Waveguide(OpticalSegment):
     effective_index: ComplexIndex | None = None
     bends: CountedLoss | None = None
     crossings: CountedLoss | None = None
-    mode_field_diameter: DiameterSpread | None = None
+    mode_field_diameter: PositiveLengthSpread | None = None
     mode_size: ModeSize | None = None
 
     @model_validator(mode="after")
@@ -128,7 +127,7 @@ class Waveguide(OpticalSegment):
         counted = {"bends": self.bends, "crossings": self.crossings}
         return {
             "propagation": flux.loss_db(alpha, self.length.at(case)),
-            **{part: _flat(0.0 if features is None else features.loss_db(case), wavelength_m)
+            **{part: flat_over_wavelength(0.0 if features is None else features.loss_db(case), wavelength_m)
                for part, features in counted.items()},
         }
 
