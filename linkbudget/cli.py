@@ -50,9 +50,12 @@ def _margin_override(text):
     from linkbudget.units import UnitError, parse_quantity
 
     try:
-        return parse_quantity(text, "ratio")
+        margin_db = parse_quantity(text, "ratio")
     except UnitError as error:
         _fail_input(f"--min-margin: {error}" + (f"\n  hint: {error.hint}" if error.hint else ""))
+    if margin_db < 0:
+        _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
+    return margin_db
 
 
 def _version(value: bool):

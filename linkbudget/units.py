@@ -61,6 +61,10 @@ UNITS: dict[str, tuple[str, float]] = {
     "°": ("angle", math.pi / 180.0),
 }
 
+#: Largest magnitude accepted for decibel quantities (a loss, a gain, a power in dBm): beyond it
+#: a value can only be a typing error, and sums of such values overflow.
+DECIBEL_LIMITS = {"ratio": 1000.0, "power": 1000.0}
+
 #: Example value shown in error messages, per dimension.
 EXAMPLES = {
     "length": "12.4 km",
@@ -72,7 +76,7 @@ EXAMPLES = {
 }
 
 _QUANTITY = re.compile(
-    r"^\s*(?P<number>[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?)\s*(?P<unit>\S*)\s*$"
+    r"^\s*(?P<number>[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?)\s*(?P<unit>\S*)\s*$", re.ASCII
 )
 
 
@@ -139,9 +143,14 @@ def parse_quantity(value, dimension):
         raise UnitError(
             f"{value!r} is a {unit_dimension}, expected a {dimension}", _allowed_hint(dimension)
         )
+    value_si = number * factor
+    if not math.isfinite(value_si):
+        raise UnitError(f"{value!r} is not a finite number in {dimension} units")
     if dimension == "power" and unit != "dBm":
-        watts = number * factor
-        if watts <= 0:
+        if value_si <= 0:
             raise UnitError(f"power {value!r} must be > 0 to be expressed in dBm")
-        return float(dbm_from_watt(watts))
-    return number * factor
+        value_si = float(dbm_from_watt(value_si))
+    limit = DECIBEL_LIMITS.get(dimension)
+    if limit is not None and abs(value_si) > limit:
+        raise UnitError(f"{value!r} is beyond ±{limit:g} dB, outside any optical link")
+    return value_si

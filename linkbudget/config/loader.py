@@ -75,6 +75,26 @@ def _written_path(data, loc):
     return tuple(path), node
 
 
+#: Messages of the validation library, by error type, in the tool's own words.
+_MESSAGES = {
+    "model_type": "expected a mapping of keys",
+    "model_attributes_type": "expected a mapping of keys",
+    "dict_type": "expected a mapping of keys",
+    "list_type": "expected a list",
+    "string_type": "expected text",
+    "bool_type": "expected true or false",
+    "bool_parsing": "expected true or false",
+    "too_short": "needs at least one item",
+}
+
+
+def _message_of(item):
+    if item["type"] in _MESSAGES:
+        return _MESSAGES[item["type"]]
+    message = item["msg"].removeprefix("Value error, ").removeprefix("Assertion failed, ")
+    return message.replace("Input should be", "must be")
+
+
 def problems_from_validation(error, positions, model, data, prefix=()):
     """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s."""
     problems = []
@@ -95,8 +115,7 @@ def problems_from_validation(error, positions, model, data, prefix=()):
             continue
         cause = item.get("ctx", {}).get("error")
         path, _ = _written_path(data, loc + getattr(cause, "key_path", ()))
-        message = item["msg"].removeprefix("Value error, ").removeprefix("Assertion failed, ")
-        problems.append(positions.problem((*prefix, *path), message, getattr(cause, "hint", None)))
+        problems.append(positions.problem((*prefix, *path), _message_of(item), getattr(cause, "hint", None)))
     return problems
 
 

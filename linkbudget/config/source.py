@@ -13,6 +13,9 @@ import yaml
 #: "billion laughs" documents whose aliases multiply a small text into a huge structure.
 MAX_NODES = 100_000
 
+#: Deepest nesting of lists and mappings a document may have (a link needs about six).
+MAX_DEPTH = 64
+
 #: The only node tags a link file may use: plain scalars, lists and mappings.
 _PLAIN_TAGS = {
     f"tag:yaml.org,2002:{name}" for name in ("str", "int", "float", "bool", "null", "seq", "map")
@@ -138,6 +141,18 @@ class _Builder:
             self.fail(node, path, f"cannot read value: {error}")
 
 
+def _check_depth(text, file):
+    """Refuse documents nested deeper than :data:`MAX_DEPTH`, at the first too-deep node."""
+    depth = 0
+    for event in yaml.parse(text, Loader=yaml.SafeLoader):
+        if isinstance(event, (yaml.MappingStartEvent, yaml.SequenceStartEvent)):
+            depth += 1
+            if depth > MAX_DEPTH:
+                raise ConfigError([Problem(file, _mark(event), (), f"nested more than {MAX_DEPTH} levels deep")])
+        elif isinstance(event, (yaml.MappingEndEvent, yaml.SequenceEndEvent)):
+            depth -= 1
+
+
 def load_yaml(text, file="<string>"):
     """Parse YAML text into plain data and the positions of its key paths.
 
@@ -160,6 +175,7 @@ def load_yaml(text, file="<string>"):
     """
     positions = Positions(file)
     try:
+        _check_depth(text, file)
         node = yaml.compose(text, Loader=yaml.SafeLoader)
     except yaml.MarkedYAMLError as error:
         mark = error.problem_mark or error.context_mark
@@ -174,11 +190,6 @@ def load_yaml(text, file="<string>"):
         raise ConfigError([Problem(file, where, (), message)]) from None
     except yaml.YAMLError as error:
         raise ConfigError([Problem(file, None, (), f"YAML error: {error}")]) from None
-    except RecursionError:
-        raise ConfigError([Problem(file, None, (), "the document is nested too deeply")]) from None
     if node is None:
         raise ConfigError([Problem(file, Mark(1, 1), (), "the file is empty")])
-    try:
-        return _Builder(positions).build(node, ()), positions
-    except RecursionError:
-        raise ConfigError([Problem(file, None, (), "the document is nested too deeply")]) from None
+    return _Builder(positions).build(node, ()), positions

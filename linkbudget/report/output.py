@@ -26,16 +26,24 @@ def write_atomic(path, text, *, overwrite=False, protected=()):
     path = Path(path)
     if any(path.resolve() == Path(other).resolve() for other in protected):
         raise OutputError(f"{path}: refusing to write a report over an input file")
+    if path.is_dir():
+        raise OutputError(f"{path}: is a folder; give a file name")
     if path.exists() and not overwrite:
         raise OutputError(f"{path}: file exists; pass --force to replace it")
     directory = path.parent if str(path.parent) else Path(".")
     if not directory.is_dir():
         raise OutputError(f"{path}: folder {directory} does not exist")
-    handle, temporary = tempfile.mkstemp(dir=directory, prefix=f".{path.name}.", suffix=".tmp")
+    try:
+        handle, temporary = tempfile.mkstemp(dir=directory, prefix=f".{path.name}.", suffix=".tmp")
+    except OSError as error:
+        raise OutputError(f"{path}: cannot write: {error.strerror}") from None
     try:
         with os.fdopen(handle, "w", encoding="utf-8") as stream:
             stream.write(text)
         os.replace(temporary, path)
+    except OSError as error:
+        Path(temporary).unlink(missing_ok=True)
+        raise OutputError(f"{path}: cannot write: {error.strerror}") from None
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
