@@ -26,6 +26,7 @@ import warnings
 
 import numpy as np
 
+from linkbudget.physics.checks import positive
 from linkbudget.physics.validity import ValidityWarning
 
 #: First zero of the Bessel function J0: the LP11 cut-off V number of a step-index fibre.
@@ -39,16 +40,10 @@ _GOLDEN_STEPS = 60  # shrinks a bracket by 0.618^60 ~ 3e-13
 _LEGENDRE_NODES = 96
 
 
-def _positive(values, name):
-    array = np.asarray(values, dtype=float)
-    if np.any(np.isnan(array)) or np.any(array <= 0):
-        raise ValueError(f"{name} must be > 0")
-    return array
-
 
 def _aperture_from_indices(n_core, n_cladding):
-    n_core = _positive(n_core, "core index")
-    n_cladding = _positive(n_cladding, "cladding index")
+    n_core = positive(n_core, "core index")
+    n_cladding = positive(n_cladding, "cladding index")
     if np.any(n_core <= n_cladding):
         raise ValueError("a guiding fibre needs n_core > n_cladding")
     return np.sqrt(n_core**2 - n_cladding**2)
@@ -105,9 +100,9 @@ def v_number(core_radius_m, wavelength_m, *, numerical_aperture=None, n_core=Non
     if numerical_aperture is None:
         aperture = _aperture_from_indices(n_core, n_cladding)
     else:
-        aperture = _positive(numerical_aperture, "numerical aperture")
-    core_radius_m = _positive(core_radius_m, "core radius")
-    return 2.0 * np.pi * core_radius_m * aperture / _positive(wavelength_m, "wavelength")
+        aperture = positive(numerical_aperture, "numerical aperture")
+    core_radius_m = positive(core_radius_m, "core radius")
+    return 2.0 * np.pi * core_radius_m * aperture / positive(wavelength_m, "wavelength")
 
 
 def _warn_outside(v, low, high, what):
@@ -144,10 +139,10 @@ def marcuse_mode_field_radius_m(core_radius_m, v):
     .. [1] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56,
        703 (1977).
     """
-    v = _positive(v, "V number")
+    v = positive(v, "V number")
     _warn_outside(v, *MARCUSE_VALID_V, "Marcuse's mode-field formula")
     # Marcuse's fit of w/a [1] (equation number not confirmed)
-    return _positive(core_radius_m, "core radius") * (0.65 + 1.619 * v**-1.5 + 2.879 * v**-6)
+    return positive(core_radius_m, "core radius") * (0.65 + 1.619 * v**-1.5 + 2.879 * v**-6)
 
 
 def mode_field_diameter_m(core_radius_m, wavelength_m, *, numerical_aperture=None, n_core=None, n_cladding=None):
@@ -176,7 +171,7 @@ def mode_field_diameter_m(core_radius_m, wavelength_m, *, numerical_aperture=Non
 
 
 def _lp01_v(v):
-    v = _positive(v, "V number")
+    v = positive(v, "V number")
     if np.any(v > LP11_CUTOFF_V):
         warnings.warn(
             f"V = {v.max():.4g} is above the LP11 cut-off {LP11_CUTOFF_V:.4f}: the fibre is not single-mode",
@@ -269,7 +264,7 @@ def lp01_field(r_m, core_radius_m, v):
         raise ValueError("radial position must be >= 0")
     v = _lp01_v(v)
     u, w = _lp01_uw(v)
-    return _lp01_field_normalised(r_m / _positive(core_radius_m, "core radius"), u, w)
+    return _lp01_field_normalised(r_m / positive(core_radius_m, "core radius"), u, w)
 
 
 def _gaussian_overlap(u, w, spot):
@@ -331,7 +326,7 @@ def lp01_mode_field_radius_m(core_radius_m, v):
     .. [2] A. W. Snyder and J. D. Love, "Optical Waveguide Theory", 1983.
     """
     v = _lp01_v(v)
-    core_radius_m = _positive(core_radius_m, "core radius")
+    core_radius_m = positive(core_radius_m, "core radius")
     u, w = _lp01_uw(v)
     # Search bracket around the Petermann II radius, which the best-fit Gaussian exceeds by a
     # factor from 1.01 (V ≈ 2.4) to about 1/V at small V, where the mode tail is K0-like.
@@ -377,4 +372,4 @@ def petermann_mode_field_radius_m(core_radius_m, v):
     """
     v = _lp01_v(v)
     u, w = _lp01_uw(v)
-    return _positive(core_radius_m, "core radius") * _petermann_ratio(u, w)
+    return positive(core_radius_m, "core radius") * _petermann_ratio(u, w)

@@ -29,26 +29,7 @@ References
 
 import numpy as np
 
-
-def _positive(values, name):
-    array = np.asarray(values, dtype=float)
-    if np.any(np.isnan(array)) or np.any(array <= 0):
-        raise ValueError(f"{name} must be > 0, got {array.min() if array.size else array!r}")
-    return array
-
-
-def _non_negative(values, name):
-    array = np.asarray(values, dtype=float)
-    if np.any(np.isnan(array)) or np.any(array < 0):
-        raise ValueError(f"{name} must be >= 0, got {array.min() if array.size else array!r}")
-    return array
-
-
-def _finite(values, name):
-    array = np.asarray(values, dtype=float)
-    if not np.all(np.isfinite(array)):
-        raise ValueError(f"{name} must be finite")
-    return array
+from linkbudget.physics.checks import finite, non_negative, positive
 
 
 def rayleigh_range_m(waist_m, wavelength_m, *, n=1.0):
@@ -77,8 +58,8 @@ def rayleigh_range_m(waist_m, wavelength_m, *, n=1.0):
     .. [1] H. Kogelnik and T. Li, "Laser beams and resonators", Appl. Opt. 5, 1550 (1966).
     .. [2] A. E. Siegman, "Lasers", 1986.
     """
-    waist_m = _positive(waist_m, "waist radius")
-    return np.pi * waist_m**2 * _positive(n, "refractive index") / _positive(wavelength_m, "wavelength")
+    waist_m = positive(waist_m, "waist radius")
+    return np.pi * waist_m**2 * positive(n, "refractive index") / positive(wavelength_m, "wavelength")
 
 
 def spot_radius_m(waist_m, distance_m, wavelength_m, *, n=1.0):
@@ -109,7 +90,7 @@ def spot_radius_m(waist_m, distance_m, wavelength_m, *, n=1.0):
     .. [1] H. Kogelnik and T. Li, "Laser beams and resonators", Appl. Opt. 5, 1550 (1966).
     """
     z_r = rayleigh_range_m(waist_m, wavelength_m, n=n)
-    return np.asarray(waist_m, dtype=float) * np.sqrt(1.0 + (_finite(distance_m, "distance") / z_r) ** 2)
+    return np.asarray(waist_m, dtype=float) * np.sqrt(1.0 + (finite(distance_m, "distance") / z_r) ** 2)
 
 
 def divergence_half_angle_rad(waist_m, wavelength_m, *, n=1.0):
@@ -133,7 +114,7 @@ def divergence_half_angle_rad(waist_m, wavelength_m, *, n=1.0):
     ----------
     .. [1] A. E. Siegman, "Lasers", 1986.
     """
-    return _positive(waist_m, "waist radius") / rayleigh_range_m(waist_m, wavelength_m, n=n)
+    return positive(waist_m, "waist radius") / rayleigh_range_m(waist_m, wavelength_m, n=n)
 
 
 def waist_from_divergence_m(divergence_half_angle_rad, wavelength_m, *, n=1.0):
@@ -157,8 +138,8 @@ def waist_from_divergence_m(divergence_half_angle_rad, wavelength_m, *, n=1.0):
     ----------
     .. [1] A. E. Siegman, "Lasers", 1986.
     """
-    theta = _positive(divergence_half_angle_rad, "divergence half-angle")
-    return _positive(wavelength_m, "wavelength") / (np.pi * _positive(n, "refractive index") * theta)
+    theta = positive(divergence_half_angle_rad, "divergence half-angle")
+    return positive(wavelength_m, "wavelength") / (np.pi * positive(n, "refractive index") * theta)
 
 
 def q_from_waist(waist_m, wavelength_m, *, n=1.0, distance_m=0.0):
@@ -190,9 +171,9 @@ def q_from_waist(waist_m, wavelength_m, *, n=1.0, distance_m=0.0):
     .. [1] H. Kogelnik and T. Li, "Laser beams and resonators", Appl. Opt. 5, 1550 (1966).
     .. [2] A. E. Siegman, "Lasers", 1986 (reduced ray matrices).
     """
-    n = _positive(n, "refractive index")
+    n = positive(n, "refractive index")
     z_r = rayleigh_range_m(waist_m, wavelength_m, n=n)
-    return (_finite(distance_m, "distance") + 1j * z_r) / n
+    return (finite(distance_m, "distance") + 1j * z_r) / n
 
 
 def abcd_propagate(q, abcd):
@@ -255,7 +236,7 @@ def abcd_free_space(length_m, *, n=1.0):
     ----------
     .. [1] A. E. Siegman, "Lasers", 1986 (reduced ray matrices).
     """
-    reduced = _non_negative(length_m, "length") / _positive(n, "refractive index")
+    reduced = non_negative(length_m, "length") / positive(n, "refractive index")
     return _matrix(1.0, reduced, 0.0, 1.0)
 
 
@@ -278,7 +259,7 @@ def abcd_thin_lens(focal_length_m):
     .. [1] H. Kogelnik and T. Li, "Laser beams and resonators", Appl. Opt. 5, 1550 (1966).
     .. [2] A. E. Siegman, "Lasers", 1986.
     """
-    focal_length_m = _finite(focal_length_m, "focal length")
+    focal_length_m = finite(focal_length_m, "focal length")
     if np.any(focal_length_m == 0):
         raise ValueError("focal length must be non-zero")
     return _matrix(1.0, 0.0, -1.0 / focal_length_m, 1.0)
@@ -307,8 +288,8 @@ def abcd_flat_interface(n1, n2):
     ----------
     .. [1] A. E. Siegman, "Lasers", 1986 (reduced ray matrices).
     """
-    n1 = _positive(n1, "refractive index n1")
-    n2 = _positive(n2, "refractive index n2")
+    n1 = positive(n1, "refractive index n1")
+    n2 = positive(n2, "refractive index n2")
     ones = np.ones(np.broadcast_shapes(n1.shape, n2.shape))
     return _matrix(ones, 0.0, 0.0, ones)
 
@@ -335,7 +316,7 @@ def spot_radius_from_q(q, wavelength_m):
     inverse_imag = np.imag(1.0 / np.asarray(q, dtype=complex))
     if np.any(inverse_imag >= 0):
         raise ValueError("a Gaussian beam has Im(1/q) < 0")
-    return np.sqrt(-_positive(wavelength_m, "wavelength") / (np.pi * inverse_imag))
+    return np.sqrt(-positive(wavelength_m, "wavelength") / (np.pi * inverse_imag))
 
 
 def waist_from_q(q, wavelength_m):
@@ -361,7 +342,7 @@ def waist_from_q(q, wavelength_m):
     q_imag = np.imag(np.asarray(q, dtype=complex))
     if np.any(q_imag <= 0):
         raise ValueError("a Gaussian beam has Im(q) > 0")
-    return np.sqrt(_positive(wavelength_m, "wavelength") * q_imag / np.pi)
+    return np.sqrt(positive(wavelength_m, "wavelength") * q_imag / np.pi)
 
 
 def coupling_efficiency(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0.0, separation_m=0.0, n=1.0):
@@ -464,13 +445,13 @@ def coupling_efficiency_1d(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0
     .. [2] W. B. Joyce and B. C. DeLoach, "Alignment of Gaussian beams", Appl. Opt. 23, 4187 (1984)
        (from memory).
     """
-    w1_sq = _positive(w1_m, "mode-field radius w1") ** 2
-    w2_sq = _positive(w2_m, "mode-field radius w2") ** 2
-    wavelength_m = _positive(wavelength_m, "wavelength")
-    n = _positive(n, "refractive index")
-    offset_m = _finite(offset_m, "offset")
-    tilt_rad = _finite(tilt_rad, "tilt")
-    delta = wavelength_m * _non_negative(separation_m, "separation") / (np.pi * n)  # 2D/k
+    w1_sq = positive(w1_m, "mode-field radius w1") ** 2
+    w2_sq = positive(w2_m, "mode-field radius w2") ** 2
+    wavelength_m = positive(wavelength_m, "wavelength")
+    n = positive(n, "refractive index")
+    offset_m = finite(offset_m, "offset")
+    tilt_rad = finite(tilt_rad, "tilt")
+    delta = wavelength_m * non_negative(separation_m, "separation") / (np.pi * n)  # 2D/k
     k = 2.0 * np.pi * n / wavelength_m
     s = w1_sq + w2_sq - 1j * delta
     c = w1_sq - 1j * delta
@@ -505,9 +486,9 @@ def offset_coupling(w1_m, w2_m, offset_m):
     .. [2] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56,
        703 (1977).
     """
-    w1_sq = _positive(w1_m, "mode-field radius w1") ** 2
-    w2_sq = _positive(w2_m, "mode-field radius w2") ** 2
-    offset_m = _finite(offset_m, "offset")
+    w1_sq = positive(w1_m, "mode-field radius w1") ** 2
+    w2_sq = positive(w2_m, "mode-field radius w2") ** 2
+    offset_m = finite(offset_m, "offset")
     # Eq. (8.69) of [1]
     return (2.0 * np.sqrt(w1_sq * w2_sq) / (w1_sq + w2_sq)) ** 2 * np.exp(-2.0 * offset_m**2 / (w1_sq + w2_sq))
 
@@ -539,11 +520,11 @@ def tilt_coupling(w_m, tilt_rad, wavelength_m, *, n=1.0):
     ----------
     .. [1] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998.
     """
-    w_m = _positive(w_m, "mode-field radius")
-    n = _positive(n, "refractive index")
-    tilt_rad = _finite(tilt_rad, "tilt")
+    w_m = positive(w_m, "mode-field radius")
+    n = positive(n, "refractive index")
+    tilt_rad = finite(tilt_rad, "tilt")
     # Eq. (8.75) of [1]
-    return np.exp(-((np.pi * n * w_m * tilt_rad / _positive(wavelength_m, "wavelength")) ** 2))
+    return np.exp(-((np.pi * n * w_m * tilt_rad / positive(wavelength_m, "wavelength")) ** 2))
 
 
 def gap_coupling(w_m, gap_m, wavelength_m, *, n=1.0):
@@ -574,11 +555,11 @@ def gap_coupling(w_m, gap_m, wavelength_m, *, n=1.0):
     ----------
     .. [1] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998.
     """
-    w_m = _positive(w_m, "mode-field radius")
-    n = _positive(n, "refractive index")
-    gap_m = _non_negative(gap_m, "gap")
+    w_m = positive(w_m, "mode-field radius")
+    n = positive(n, "refractive index")
+    gap_m = non_negative(gap_m, "gap")
     # Eq. (8.81) of [1]
-    reduced_gap = _positive(wavelength_m, "wavelength") * gap_m / (2.0 * np.pi * n * w_m**2)
+    reduced_gap = positive(wavelength_m, "wavelength") * gap_m / (2.0 * np.pi * n * w_m**2)
     return 1.0 / (1.0 + reduced_gap**2)
 
 
@@ -601,5 +582,5 @@ def aperture_transmission(radius_m, spot_radius_m):
     ----------
     .. [1] A. E. Siegman, "Lasers", 1986 (aperture transmission of a Gaussian beam).
     """
-    radius_m = _non_negative(radius_m, "aperture radius")
-    return -np.expm1(-2.0 * radius_m**2 / _positive(spot_radius_m, "spot radius") ** 2)
+    radius_m = non_negative(radius_m, "aperture radius")
+    return -np.expm1(-2.0 * radius_m**2 / positive(spot_radius_m, "spot radius") ** 2)

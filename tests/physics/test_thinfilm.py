@@ -57,7 +57,8 @@ def tmm_coherent(polarization, layers, thickness, wavelength_m, n_incident, n_ex
         angles = tmm.list_snell(n_list, angle_rad)
         delta = 2 * np.pi * n_list[1:-1] * np.cos(angles[1:-1]) * thickness / lam
         opacity = max(opacity, np.sum(np.minimum(np.abs(delta.imag), 35.0)))
-        result = tmm.coh_tmm(polarization, n_list, [np.inf, *thickness, np.inf], angle_rad, lam)
+        with np.errstate(all="ignore"):  # tmm overflows on opaque stacks; those draws are skipped
+            result = tmm.coh_tmm(polarization, n_list, [np.inf, *thickness, np.inf], angle_rad, lam)
         reflectance.append(result["R"])
         transmittance.append(result["T"])
     return np.array(reflectance), np.array(transmittance), opacity
