@@ -7,8 +7,10 @@ def _cell(value):
     return "blocked" if value == float("inf") else f"{value:.2f}"
 
 
-def _table(headers, rows):
-    lines = ["| " + " | ".join(headers) + " |", "|" + "|".join("---:" if i else "---" for i in range(len(headers))) + "|"]
+def _table(headers, rows, *, text_columns=1):
+    """A Markdown table: the first ``text_columns`` left-aligned, the numbers right-aligned."""
+    rule = "|".join("---" if i < text_columns else "---:" for i in range(len(headers)))
+    lines = ["| " + " | ".join(headers) + " |", f"|{rule}|"]
     lines += ["| " + " | ".join(cell.replace("|", "\\|") for cell in row) + " |" for row in rows]
     return lines
 
@@ -24,7 +26,7 @@ def render(result):
         ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm"],
         [[row.name, row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
           _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index])]
-         for n, row in enumerate(result.rows)])
+         for n, row in enumerate(result.rows)], text_columns=2)
     lines += ["", "Margins:", ""]
     lines += _table(
         ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB"],
