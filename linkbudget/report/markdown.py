@@ -1,6 +1,6 @@
 """The Markdown report, for a pull-request comment."""
 
-from linkbudget.report.summary import margin_sentence, nm, overload_sentence, verdict
+from linkbudget.report.summary import margin_sentence, nm, overload_sentence, row_note, verdict
 
 
 def _cell(value):
@@ -23,9 +23,10 @@ def render(result):
              f"- {margin_sentence(result)}", f"- {overload_sentence(result)}", "",
              f"Budget at {nm(result.wavelength_m[index])}:", ""]
     lines += _table(
-        ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm"],
+        ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm", "note"],
         [[row.name, row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
-          _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index])]
+          _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index]),
+          row_note(row, index)]
          for n, row in enumerate(result.rows)], text_columns=2)
     lines += ["", "Margins:", ""]
     lines += _table(

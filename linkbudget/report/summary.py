@@ -47,3 +47,36 @@ def overload_sentence(result):
 def verdict(result):
     """``"CLOSES"`` or ``"DOES NOT CLOSE"``."""
     return "CLOSES" if result.closes else "DOES NOT CLOSE"
+
+
+def _percent(values, index):
+    return f"{100 * float(values[index]):.3g} %"
+
+
+def _db_cases(losses, index):
+    return f"{float(losses['typ'][index]):.2f} dB typ, {float(losses['worst'][index]):.2f} worst"
+
+
+def row_note(row, index):
+    """A short note on a budget row at wavelength number ``index``: the reflectance of a face,
+    R and A of a coating, the geometric estimate beside a datasheet loss, the parts of a loss."""
+    detail = row.detail
+    notes = []
+    if "reflectance" in detail:
+        notes.append(f"R {_percent(detail['reflectance'], index)}")
+    if "absorptance" in detail:
+        notes.append(f"A {_percent(detail['absorptance'], index)}")
+    if "geometric_loss_db" in detail:
+        notes.append(f"geometry: {_db_cases(detail['geometric_loss_db'], index)}")
+    if "beam_loss_db" in detail:
+        notes.append(f"beam {float(detail['beam_loss_db']['typ'][index]):.2f} dB, "
+                     f"medium {float(detail['ambient_loss_db']['typ'][index]):.2f} dB (typ)")
+    if "beam" in detail:
+        notes.append("beam not evaluated")
+    if "loss_parts_db" in detail:
+        notes.append(", ".join(f"{part} {float(cases['typ'][index]):.2f}"
+                               for part, cases in detail["loss_parts_db"].items()
+                               if any(float(cases[case][index]) != 0 for case in cases)))
+    if detail.get("port") is not None:
+        notes.append(f"port {detail['port']}")
+    return "; ".join(notes)

@@ -11,7 +11,7 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from linkbudget.report.summary import margin_sentence, nm, overload_sentence, verdict
+from linkbudget.report.summary import margin_sentence, nm, overload_sentence, row_note, verdict
 
 #: Wavelengths listed one by one in the margin table; longer axes list the tightest ones.
 MAX_LISTED_WAVELENGTHS = 8
@@ -25,12 +25,21 @@ def _db(value, signed=False):
     return f"{value:+.2f}" if signed else f"{value:.2f}"
 
 
+def _name_cell(row, index):
+    """The row's name, with its note (reflectance, geometry, parts) dimmed on a line below."""
+    cell = Text(row.name)
+    note = row_note(row, index)
+    if note:
+        cell.append(f"\n{note}", style="dim")
+    return cell
+
+
 def budget_table(result, index):
     """The per-segment table at wavelength number ``index``."""
-    table = Table(title=f"Budget at {nm(result.wavelength_m[index])}", title_justify="left", box=box.SIMPLE_HEAD,
+    table = Table(title=f"Budget at {nm(result.wavelength_m[index])}", title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
                   caption="losses and totals in dB; power after each segment in dBm", caption_justify="left")
     table.add_column("#", justify="right")
-    table.add_column("segment", min_width=12, overflow="fold")
+    table.add_column("segment", min_width=16, overflow="fold")
     table.add_column("kind", min_width=9, no_wrap=True)
     for header in ("loss\ntyp", "loss\nworst", "total\nworst", "power\ntyp", "power\nworst"):
         table.add_column(header, justify="right", no_wrap=True)
@@ -38,7 +47,7 @@ def budget_table(result, index):
                   _db(result.source_dbm["worst"][index], True))
     for number, row in enumerate(result.rows):
         table.add_row(
-            str(number + 1), Text(row.name), row.kind,
+            str(number + 1), _name_cell(row, index), row.kind,
             _db(result.loss_db["typ"][number, index]), _db(result.loss_db["worst"][number, index]),
             _db(result.cumulative_loss_db["worst"][number, index]),
             _db(result.power_after_dbm["typ"][number, index], True),
