@@ -95,40 +95,85 @@ class LinkResult:
         return result_dict(self)
 
 
-def _flat_row(name, kind, loss_db, **detail):
-    return Row(name, kind, {case: loss_db for case in CASES}, detail)
+#: The largest ray angle the faces are evaluated at: just below grazing incidence.
+_GRAZING_RAD = np.nextafter(np.pi / 2, 0.0)
+
+
+def _polarizations(polarization):
+    """The linear polarizations whose powers are followed separately ("unpolarized": s and p)."""
+    return fresnel.POLARIZATIONS[polarization]
+
+
+def _even_share(polarization):
+    """case -> polarization -> power share of light of ``polarization`` (equal shares)."""
+    pols = _polarizations(polarization)
+    return {case: {pol: 1.0 / len(pols) for pol in pols} for case in CASES}
+
+
+def _pass(share, transmittance):
+    """Power passed by a polarization-dependent transmittance, and the shares after it.
+
+    The light passes Σ_pol share_pol·T_pol of the power reaching it; after it each polarization
+    holds share_pol·T_pol of that, renormalised. Chaining such steps multiplies, per
+    polarization, the transmittances of every face before averaging, so an unpolarized beam
+    through several oblique faces loses mean_pol(Π T_pol), not Π mean_pol(T_pol).
+    """
+    passed = sum(share[pol] * transmittance[pol] for pol in transmittance)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        after = {pol: np.where(passed > 0, share[pol] * transmittance[pol] / passed, share[pol])
+                 for pol in transmittance}
+    return passed, after
+
+
+def _share_row(name, kind, share, transmittance, reflectance=None, absorptance=None):
+    """A row whose power transmittance differs by polarization, and the shares after it (per case)."""
+    losses, after = {}, {}
+    for case in CASES:
+        passed, after[case] = _pass(share[case], transmittance)
+        losses[case] = loss_db_from_transmittance(passed)
+    detail = {}
+    for key, value in (("reflectance", reflectance), ("absorptance", absorptance)):
+        if value is not None:
+            detail[key] = sum(share["typ"][pol] * value[pol] for pol in value)
+    return Row(name, kind, losses, detail), after
 
 
 def _refracted_angle_rad(n_from, angle_rad, n_to):
     """Ray angle in ``n_to`` of a ray at ``angle_rad`` in ``n_from`` (Snell's law on the real
-    parts; π/2 beyond the critical angle, where the face transmits nothing anyway)."""
+    parts; just below π/2 beyond the critical angle, where the face transmits nothing anyway)."""
     sine = np.real(n_from) * np.sin(angle_rad) / np.real(n_to)
-    return np.arcsin(np.clip(sine, -1.0, 1.0))
+    return np.minimum(np.arcsin(np.clip(sine, -1.0, 1.0)), _GRAZING_RAD)
 
 
-def _face(name_from, name_to, n_from, n_to, angle_rad, polarization):
-    """A bare interface: its row, its reflectance, and its reflectance seen from the far side."""
-    reflectance, transmittance = fresnel.interface_power_coefficients(
-        n_from, n_to, angle_rad=angle_rad, polarization=polarization)
-    back, _ = fresnel.interface_power_coefficients(
-        n_to, n_from, angle_rad=_refracted_angle_rad(n_from, angle_rad, n_to), polarization=polarization)
-    row = _flat_row(f"{name_from} → {name_to}", "interface", loss_db_from_transmittance(transmittance),
-                    reflectance=reflectance)
-    return row, reflectance, back
+def _face(name_from, name_to, n_from, n_to, angle_rad, polarization, share):
+    """A bare interface: its row, the shares after it, its reflectance and that seen from the far
+    side (per polarization)."""
+    inside = _refracted_angle_rad(n_from, angle_rad, n_to)
+    reflectance, transmittance, back = {}, {}, {}
+    for pol in _polarizations(polarization):
+        reflectance[pol], transmittance[pol] = fresnel.interface_power_coefficients(
+            n_from, n_to, angle_rad=angle_rad, polarization=pol)
+        back[pol], _ = fresnel.interface_power_coefficients(n_to, n_from, angle_rad=inside, polarization=pol)
+    row, share = _share_row(f"{name_from} → {name_to}", "interface", share, transmittance, reflectance)
+    return row, share, reflectance, back
 
 
-def _coating(coating, wavelength_m, n_up, n_down, angle_rad, polarization):
-    """A coating's row, its reflectance, and its reflectance seen from the downstream medium."""
+def _coating(coating, wavelength_m, n_up, n_down, angle_rad, polarization, share):
+    """A coating's row, the shares after it, its reflectance and that seen from the downstream
+    medium (per polarization)."""
     angle = angle_rad if coating.angle is None else coating.angle
-    pol = coating.polarization or polarization
-    forward = thinfilm.coherent_stack(coating.layer_index, coating.thickness_m, wavelength_m,
-                                      n_incident=n_up, n_exit=n_down, angle_rad=angle, polarization=pol)
-    backward = thinfilm.coherent_stack(coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m,
-                                       n_incident=n_down, n_exit=n_up,
-                                       angle_rad=_refracted_angle_rad(n_up, angle, n_down), polarization=pol)
-    row = _flat_row(coating.name, "coating", loss_db_from_transmittance(forward.transmittance),
-                    reflectance=forward.reflectance, absorptance=forward.absorptance)
-    return [row], forward.reflectance, backward.reflectance
+    reflectance, transmittance, absorptance, back = {}, {}, {}, {}
+    for pol in _polarizations(polarization):
+        forward = thinfilm.coherent_stack(coating.layer_index, coating.thickness_m, wavelength_m,
+                                          n_incident=n_up, n_exit=n_down, angle_rad=angle, polarization=pol)
+        backward = thinfilm.coherent_stack(coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m,
+                                           n_incident=n_down, n_exit=n_up,
+                                           angle_rad=_refracted_angle_rad(n_up, angle, n_down), polarization=pol)
+        reflectance[pol], transmittance[pol] = forward.reflectance, forward.transmittance
+        # 1 - R - T rounds to about -1e-16 for lossless layers
+        absorptance[pol], back[pol] = np.maximum(forward.absorptance, 0.0), backward.reflectance
+    row, share = _share_row(coating.name, "coating", share, transmittance, reflectance, absorptance)
+    return [row], share, reflectance, back
 
 
 @dataclass
@@ -138,49 +183,58 @@ class _Carrier:
     segment: object
     exit_angle_rad: np.ndarray | float  # ray angle inside it, at its exit face
     polarization: str
-    back_reflectance: np.ndarray | float  # of its entry face, seen from inside
+    share: dict  # case -> polarization -> power share of the light inside it
+    back_reflectance: dict | None  # polarization -> of its entry face, seen from inside
     single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
 
 
 def _joint(upstream, segment, joint, coating, wavelength_m):
     """Rows between two media and the ray entering ``segment``.
 
-    Returns (rows, reflectance of the first face met, back-reflectance of the last face,
-    angle in the upstream medium, polarization).
+    Returns (rows, shares after them, reflectance of the first face met, back-reflectance of the
+    last face (both per polarization, None without a face), angle in the upstream medium,
+    polarization).
     """
     n_up, n_down = upstream.segment.medium_index(), segment.medium_index()
     if segment.angle is not None:
         angle, polarization = segment.angle, segment.polarization
     else:
         angle, polarization = upstream.exit_angle_rad, upstream.polarization
+    if coating is not None and coating.polarization is not None:
+        polarization = coating.polarization
+    share = upstream.share if polarization == upstream.polarization else _even_share(polarization)
     if coating is not None:
-        return (*_coating(coating, wavelength_m, n_up, n_down, angle, polarization), angle, polarization)
+        return (*_coating(coating, wavelength_m, n_up, n_down, angle, polarization, share), angle, polarization)
     kind = "physical-contact" if joint is None else joint.joint_type
     if kind == "index-matched" or (kind == "physical-contact" and np.array_equal(n_up, n_down)):
-        return [], 0.0, 0.0, angle, polarization
+        return [], share, None, None, angle, polarization
     if kind == "air-gap":
         n_gap, gap_name = joint.gap_medium_index(), f"{joint.name} gap"
-        first, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle, polarization)
+        first, share, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle, polarization, share)
         angle_gap = _refracted_angle_rad(n_up, angle, n_gap)
-        second, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, polarization)
-        return [first, second], reflectance, back, angle, polarization
-    row, reflectance, back = _face(upstream.segment.name, segment.name, n_up, n_down, angle, polarization)
-    return [row], reflectance, back, angle, polarization
+        second, share, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, polarization, share)
+        return [first, second], share, reflectance, back, angle, polarization
+    row, share, reflectance, back = _face(upstream.segment.name, segment.name, n_up, n_down, angle, polarization,
+                                          share)
+    return [row], share, reflectance, back, angle, polarization
 
 
-def _multiple_reflections_row(carrier, exit_reflectance):
+def _multiple_reflections_row(carrier, exit_reflectance, share):
     """The incoherent sum of the light bouncing between a medium's two faces, as a (negative) loss.
 
-    T = T1·τ·T2 / (1 − R1'·R2·τ²): the single-pass rows give T1·τ·T2, this row the factor
-    1/(1 − R1'·R2·τ²), with τ the single-pass bulk transmittance (Born & Wolf, "Principles of
-    Optics", 1999, the incoherent sum over a thick plate; Katsidis & Siapkas, Appl. Opt. 41,
-    3978 (2002)).
+    T = T1·τ·T2 / (1 − R1'·R2·τ²) per polarization: the single-pass rows give T1·τ·T2, this row
+    the factor 1/(1 − R1'·R2·τ²), with τ the single-pass bulk transmittance (Born & Wolf,
+    "Principles of Optics", 1999, the incoherent sum over a thick plate; Katsidis & Siapkas,
+    Appl. Opt. 41, 3978 (2002)). Returns the row and the shares after it.
     """
-    losses = {}
+    losses, after = {}, {}
     for case, single_pass_db in carrier.single_pass_db.items():
         tau = transmittance_from_loss_db(single_pass_db)
-        losses[case] = -loss_db_from_transmittance(1.0 - carrier.back_reflectance * exit_reflectance * tau ** 2)
-    return Row(f"{carrier.segment.name} multiple reflections", "reflections", losses)
+        factor = {pol: 1.0 / (1.0 - carrier.back_reflectance[pol] * exit_reflectance[pol] * tau ** 2)
+                  for pol in exit_reflectance}
+        passed, after[case] = _pass(share[case], factor)
+        losses[case] = loss_db_from_transmittance(passed)
+    return Row(f"{carrier.segment.name} multiple reflections", "reflections", losses), after
 
 
 def budget_rows(segments, wavelength_m):
@@ -217,19 +271,24 @@ def _add_segment_rows(rows, segments, position, wavelength_m, upstream, joint, c
     if index is None:
         rows.append(segment.budget_row(wavelength_m, **neighbours))
         return upstream, segment if hasattr(segment, "joint") else joint, coating
-    back_reflectance, angle, polarization = 0.0, 0.0, segment.polarization
+    back_reflectance, angle, polarization = None, 0.0, segment.polarization
+    share = _even_share(polarization)
     if upstream is not None:
-        joint_rows, reflectance, back_reflectance, angle, polarization = _joint(
+        joint_rows, share, reflectance, back_reflectance, angle, polarization = _joint(
             upstream, segment, joint, coating, wavelength_m)
         rows.extend(joint_rows)
-        if upstream.single_pass_db is not None:
-            rows.append(_multiple_reflections_row(upstream, reflectance))
+        if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
+            reflections, share = _multiple_reflections_row(upstream, reflectance, share)
+            rows.append(reflections)
     n_before = index if upstream is None else upstream.segment.medium_index()
-    inside = _refracted_angle_rad(n_before, angle, index) if segment.angle is not None else 0.0
+    # a tilt carries on through media in contact (their faces are parallel to the tilted one);
+    # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
+    carries_tilt = segment.angle is not None or segment.kind == "medium"
+    inside = _refracted_angle_rad(n_before, angle, index) if carries_tilt else 0.0
     with np.errstate(divide="ignore"):
         bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **neighbours)
     rows.append(bulk)
-    upstream = _Carrier(segment, inside, polarization, back_reflectance,
+    upstream = _Carrier(segment, inside, polarization, share, back_reflectance,
                         bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
     return upstream, None, None
 

@@ -46,7 +46,8 @@ class _Joint(SegmentSpec):
     (none when their indices are equal); ``index-matched``: gel or adhesive, no Fresnel term;
     ``air-gap`` (default with a ``gap``): two faces through the gap's medium (``gap_material``
     or ``gap_index``; air by default). The gap medium's index also sets the diffraction across
-    the gap, and ``tilt`` is measured in it.
+    the gap, and ``tilt`` is measured in it (Ghatak & Thyagarajan's convention), air included
+    when the joint has no gap.
     """
 
     loss: LossSpread | None = None
@@ -83,9 +84,12 @@ class _Joint(SegmentSpec):
         return "air-gap" if self.gap is not None else "physical-contact"
 
     def resolve(self, wavelength_m, base_dir):
-        if self.joint_type == "air-gap" or self.gap is not None:
+        if self.joint_type == "air-gap" or self.geometric:
             material = None if self.gap_index is not None else (self.gap_material or "air")
-            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, base_dir, ("gap",))
+            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, base_dir, ("gap_material",))
+        elif self.gap_material is not None or self.gap_index is not None:
+            raise InputProblem(("gap_material" if self.gap_material else "gap_index",),
+                               "a gap medium needs a gap, a tilt or an air-gap joint to act on")
         return self
 
     def gap_medium_index(self):
@@ -104,7 +108,7 @@ class _Joint(SegmentSpec):
     def geometric_losses_db(self, wavelength_m, before, after):
         """Coupling loss per case from the joint's geometry (Gaussian overlap of the two modes)."""
         mode_before, mode_after = self.side_modes(wavelength_m, before, after)
-        n_gap = 1.0 if self._gap_index is None else np.real(self._gap_index)
+        n_gap = np.real(self._gap_index)
         return coupling_losses_db(wavelength_m, mode_before, mode_after, offset=self.offset, tilt=self.tilt,
                                   separation=self.gap, n=n_gap)
 
