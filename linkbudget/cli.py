@@ -191,10 +191,8 @@ def materials(
             return
         material = load_material(name)
         if not wavelength:
-            low, high = material.valid_range_m
-            Console().print(f"{material.name}: {material.description}\n"
-                            f"range {low * 1e9:.6g}–{high * 1e9:.6g} nm\nsource: {material.source}\n"
-                            "give --wavelength to see its constants")
+            Console().print(catalog_table([material]))
+            Console().print("give --wavelength to see its constants")
             return
         wavelength_m = np.array([parse_quantity(text, "length") for text in wavelength])
         Console().print(constants_table(material, wavelength_m))

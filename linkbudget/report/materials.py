@@ -6,6 +6,14 @@ from rich.table import Table
 from linkbudget.physics import flux
 
 
+def length_text(length_m):
+    """A length in the unit that reads best: nm below 10 µm, µm below 10 mm, else mm or m."""
+    for unit, factor, below in (("nm", 1e-9, 1e-5), ("µm", 1e-6, 1e-2), ("mm", 1e-3, 1.0)):
+        if length_m < below:
+            return f"{length_m / factor:.6g} {unit}"
+    return f"{length_m:.6g} m"
+
+
 def catalog_table(materials):
     """Every material with its range, description and source (two lines each)."""
     table = Table(title="Material catalog", title_justify="left", box=box.SIMPLE_HEAD, show_header=True)
@@ -14,7 +22,7 @@ def catalog_table(materials):
     table.add_column("description and source")
     for material in materials:
         low, high = material.valid_range_m
-        table.add_row(material.name, f"{low * 1e9:.6g}–{high * 1e9:.6g} nm",
+        table.add_row(material.name, f"{length_text(low)} – {length_text(high)}",
                       f"{material.description}\n[dim]{material.source}[/dim]", end_section=True)
     return table
 
