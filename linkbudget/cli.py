@@ -102,9 +102,13 @@ def _report_text(result, output_format):
 def run(
     link: Annotated[Path, typer.Argument(help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
-    output: Annotated[Path | None, typer.Option("--output", "-o", help="Write to this file instead of the terminal.")] = None,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", help="Write to this file instead of the terminal.")
+    ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
-    min_margin: Annotated[str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")] = None,
+    min_margin: Annotated[
+        str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")
+    ] = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict."""
     from linkbudget.engine import evaluate
@@ -138,7 +142,9 @@ def _emit(result, output_format, output, force, protected):
 @app.command()
 def check(
     links: Annotated[list[Path], typer.Argument(help="One or more link files.")],
-    min_margin: Annotated[str | None, typer.Option("--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")] = None,
+    min_margin: Annotated[str | None, typer.Option(
+        "--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+    ] = None,
 ):
     """The CI gate: one line per link, exit 0 only if every link closes."""
     from linkbudget.config import ConfigError, load_link
@@ -171,8 +177,12 @@ def check(
 
 @app.command()
 def materials(
-    name: Annotated[str | None, typer.Argument(help="A catalog name or a material file; omit to list the catalog.")] = None,
-    wavelength: Annotated[list[str] | None, typer.Option("--wavelength", "-w", help="Wavelength(s), e.g. '1550nm'.")] = None,
+    name: Annotated[
+        str | None, typer.Argument(help="A catalog name or a material file; omit to list the catalog.")
+    ] = None,
+    wavelength: Annotated[
+        list[str] | None, typer.Option("--wavelength", "-w", help="Wavelength(s), e.g. '1550nm'.")
+    ] = None,
 ):
     """List the material catalog, or show one material's n, κ, α and dB/mm at given wavelengths."""
     import numpy as np

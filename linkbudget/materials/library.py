@@ -208,7 +208,7 @@ def _cauchy(block, where):
     if len(coefficients) != len(powers):
         raise MaterialError(f"{where}: {len(coefficients)} coefficients but {len(powers)} powers")
     # A·λ_unit^p = A·(λ_um / um_per_unit)^p: rescale once to the µm coefficients cauchy() takes.
-    coefficients_um = tuple(value * um_per_unit**-power for value, power in zip(coefficients, powers))
+    coefficients_um = tuple(value * um_per_unit**-power for value, power in zip(coefficients, powers, strict=True))
     return functools.partial(dispersion.cauchy, coefficients=coefficients_um, powers=powers), None
 
 

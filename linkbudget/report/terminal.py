@@ -36,7 +36,8 @@ def _name_cell(row, index):
 
 def budget_table(result, index):
     """The per-segment table at wavelength number ``index``."""
-    table = Table(title=f"Budget at {nm(result.wavelength_m[index])}", title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False,
+    table = Table(title=f"Budget at {nm(result.wavelength_m[index])}", title_justify="left",
+                  box=box.SIMPLE_HEAD, pad_edge=False,
                   caption="losses and totals in dB; power after each segment in dBm", caption_justify="left")
     table.add_column("#", justify="right")
     table.add_column("segment", min_width=16, overflow="fold")

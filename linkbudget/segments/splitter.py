@@ -109,7 +109,8 @@ class Splitter(SegmentSpec):
             split_db = tap_loss_db(self.ratio[self.followed_port - 1] / sum(self.ratio))
         else:
             split_db = tap_loss_db(self.ratio)
-        return {"split": flat_over_wavelength(split_db, wavelength_m), "excess": flat_over_wavelength(self.excess_loss.at(case), wavelength_m)}
+        return {"split": flat_over_wavelength(split_db, wavelength_m),
+                "excess": flat_over_wavelength(self.excess_loss.at(case), wavelength_m)}
 
     def loss_db(self, wavelength_m, case):
         return sum(self.loss_parts_db(wavelength_m, case).values())

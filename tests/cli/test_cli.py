@@ -225,7 +225,7 @@ def links(write_link, minimal_link):
 def check_lines(result, paths):
     lines = result.stdout.splitlines()
     assert len(lines) == len(paths) + 1, result.stdout
-    for line, path in zip(lines, paths):
+    for line, path in zip(lines[:-1], paths, strict=True):  # the last line is the summary
         assert f" {path}: " in line
     return lines
 

@@ -61,7 +61,7 @@ def expected_mark(text, at):
 #: Nine levels of nine aliases each: 9**9 (about 4e8) scalars from a 400-byte text.
 BILLION_LAUGHS = "a: &a [x, x, x, x, x, x, x, x, x]\n" + "".join(
     f"{name}: &{name} [{', '.join([f'*{previous}'] * 9)}]\n"
-    for previous, name in zip("abcdefgh", "bcdefghi")
+    for previous, name in zip("abcdefgh", "bcdefghi", strict=True)
 )
 
 DEEP_NESTING = "title: " + "[" * 2000 + "]" * 2000 + "\n"

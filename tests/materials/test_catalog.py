@@ -37,7 +37,7 @@ CONVERTED_FROM = {
 
 
 def _formula_1(um, c):  # Sellmeier: n² − 1 = C1 + Σ C(2i)·λ²/(λ² − C(2i+1)²)
-    return np.sqrt(1 + c[0] + sum(b * um**2 / (um**2 - r**2) for b, r in zip(c[1::2], c[2::2])))
+    return np.sqrt(1 + c[0] + sum(b * um**2 / (um**2 - r**2) for b, r in zip(c[1::2], c[2::2], strict=True)))
 
 
 def _formula_4(um, c):  # n² = C1 + C2·λ^C3/(λ² − C4^C5) + C6·λ^C7/(λ² − C8^C9)
@@ -45,7 +45,7 @@ def _formula_4(um, c):  # n² = C1 + C2·λ^C3/(λ² − C4^C5) + C6·λ^C7/(λ�
 
 
 def _formula_6(um, c):  # gases: n − 1 = C1 + Σ C(2i)/(C(2i+1) − λ⁻²)
-    return 1 + c[0] + sum(b / (r - um**-2) for b, r in zip(c[1::2], c[2::2]))
+    return 1 + c[0] + sum(b / (r - um**-2) for b, r in zip(c[1::2], c[2::2], strict=True))
 
 
 RAW_FORMULAS = {"formula 1": _formula_1, "formula 4": _formula_4, "formula 6": _formula_6}

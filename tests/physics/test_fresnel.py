@@ -46,7 +46,7 @@ def malitson_silica_index(wavelength_um):
     b = (0.6961663, 0.4079426, 0.8974794)
     c = (0.0684043, 0.1162414, 9.896161)
     square = wavelength_um**2
-    return np.sqrt(1.0 + sum(bi * square / (square - ci**2) for bi, ci in zip(b, c)))
+    return np.sqrt(1.0 + sum(bi * square / (square - ci**2) for bi, ci in zip(b, c, strict=True)))
 
 
 def test_malitson_silica_index_fixture_published_values():
