@@ -6,7 +6,7 @@ float in the package's internal unit for its dimension:
 ============== ================= ===============================================
 dimension       internal unit     accepted units
 ============== ================= ===============================================
-length          m                 nm, um, µm, mm, cm, m, km
+length          m                 nm, um, µm (or μm), mm, cm, m, km
 power           dBm               dBm, W, mW, uW, µW, nW
 ratio           dB                dB
 attenuation     dB/m              dB/km, dB/m, dB/cm, dB/mm, dB/um
@@ -28,7 +28,8 @@ from linkbudget.physics.decibel import dbm_from_watt
 UNITS: dict[str, tuple[str, float]] = {
     "nm": ("length", 1e-9),
     "um": ("length", 1e-6),
-    "µm": ("length", 1e-6),
+    "µm": ("length", 1e-6),  # micro sign
+    "μm": ("length", 1e-6),  # Greek mu
     "mm": ("length", 1e-3),
     "cm": ("length", 1e-2),
     "m": ("length", 1.0),

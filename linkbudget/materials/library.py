@@ -43,13 +43,15 @@ import numpy as np
 import yaml
 
 from linkbudget.materials import dispersion
+from linkbudget.units import UNITS
 from linkbudget.materials.dispersion import require_in_range
 
 _CATALOG = resources.files(__package__).joinpath("catalog")
 # The C build of the safe loader when present: the water table loads in ~20 ms instead of ~150 ms.
 _SAFE_LOADER = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 
-_LENGTH_M = {"nm": 1e-9, "um": 1e-6, "µm": 1e-6, "μm": 1e-6}  # micro sign and Greek mu
+# length units of the one unit table (linkbudget.units), by spelling -> metres
+_LENGTH_M = {unit: factor for unit, (dimension, factor) in UNITS.items() if dimension == "length"}
 _INVERSE_SQUARE_LENGTH_PER_M2 = {f"{unit}^-2": scale**-2 for unit, scale in _LENGTH_M.items()}
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _QUANTITY = re.compile(rf"\s*({_NUMBER})\s*(\S+)\s*")
