@@ -244,8 +244,10 @@ def budget_rows(segments, wavelength_m):
     (Fresnel, at the angle the downstream segment gives, or the one the upstream segment's
     tilted faces give its exit face), or the coating that sits between them, or what the joint
     of a connector or splice between them says (index-matched: nothing; air gap: two faces).
-    A medium's ``angle`` tilts both of its (parallel) faces and lengthens its path by 1/cos θ.
-    No interface is added before the first segment or after the last.
+    A medium's ``angle`` tilts both of its (parallel) faces and lengthens its path by 1/cos θ;
+    the tilt carries on through media in contact with it and ends at the next gap, fibre or
+    waveguide. Through oblique faces the s and p powers are followed separately. No interface is
+    added before the first segment or after the last.
 
     Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised while
     evaluating each segment, prefixed by its name.
