@@ -95,19 +95,16 @@ class LinkResult:
         return result_dict(self)
 
 
-#: The largest ray angle the faces are evaluated at: just below grazing incidence.
-_GRAZING_RAD = np.nextafter(np.pi / 2, 0.0)
+#: The linear polarizations whose powers are followed separately through every face.
+_POLARIZATIONS = ("s", "p")
+
+#: Power shares of s and p light for each ``polarization`` a segment may state.
+_STATED_SHARES = {"unpolarized": {"s": 0.5, "p": 0.5}, "s": {"s": 1.0, "p": 0.0}, "p": {"s": 0.0, "p": 1.0}}
 
 
-def _polarizations(polarization):
-    """The linear polarizations whose powers are followed separately ("unpolarized": s and p)."""
-    return fresnel.POLARIZATIONS[polarization]
-
-
-def _even_share(polarization):
-    """case -> polarization -> power share of light of ``polarization`` (equal shares)."""
-    pols = _polarizations(polarization)
-    return {case: {pol: 1.0 / len(pols) for pol in pols} for case in CASES}
+def _stated_share(polarization):
+    """case -> polarization -> power share, for light stated to be of ``polarization``."""
+    return {case: dict(_STATED_SHARES[polarization]) for case in CASES}
 
 
 def _pass(share, transmittance):
@@ -118,61 +115,56 @@ def _pass(share, transmittance):
     polarization, the transmittances of every face before averaging, so an unpolarized beam
     through several oblique faces loses mean_pol(Π T_pol), not Π mean_pol(T_pol).
     """
-    passed = sum(share[pol] * transmittance[pol] for pol in transmittance)
+    passed = sum(share[pol] * transmittance[pol] for pol in _POLARIZATIONS)
     with np.errstate(divide="ignore", invalid="ignore"):
         after = {pol: np.where(passed > 0, share[pol] * transmittance[pol] / passed, share[pol])
-                 for pol in transmittance}
+                 for pol in _POLARIZATIONS}
     return passed, after
 
 
-def _share_row(name, kind, share, transmittance, reflectance=None, absorptance=None):
-    """A row whose power transmittance differs by polarization, and the shares after it (per case)."""
+def _share_row(name, kind, share, transmittance, **detail):
+    """A row whose power transmittance differs by polarization, and the shares after it (per case).
+
+    ``detail`` values (per polarization) are reported weighted by the typical case's shares.
+    """
     losses, after = {}, {}
     for case in CASES:
         passed, after[case] = _pass(share[case], transmittance)
         losses[case] = loss_db_from_transmittance(passed)
-    detail = {}
-    for key, value in (("reflectance", reflectance), ("absorptance", absorptance)):
-        if value is not None:
-            detail[key] = sum(share["typ"][pol] * value[pol] for pol in value)
-    return Row(name, kind, losses, detail), after
+    weighted = {key: sum(share["typ"][pol] * value[pol] for pol in _POLARIZATIONS) for key, value in detail.items()}
+    return Row(name, kind, losses, weighted), after
 
 
-def _refracted_angle_rad(n_from, angle_rad, n_to):
-    """Ray angle in ``n_to`` of a ray at ``angle_rad`` in ``n_from`` (Snell's law on the real
-    parts; just below π/2 beyond the critical angle, where the face transmits nothing anyway)."""
-    sine = np.real(n_from) * np.sin(angle_rad) / np.real(n_to)
-    return np.minimum(np.arcsin(np.clip(sine, -1.0, 1.0)), _GRAZING_RAD)
-
-
-def _face(name_from, name_to, n_from, n_to, angle_rad, polarization, share):
-    """A bare interface: its row, the shares after it, its reflectance and that seen from the far
-    side (per polarization)."""
-    inside = _refracted_angle_rad(n_from, angle_rad, n_to)
-    reflectance, transmittance, back = {}, {}, {}
-    for pol in _polarizations(polarization):
+def _face(name_from, name_to, n_from, n_to, angle_rad, share, need_back):
+    """A bare interface: its row, the shares after it, its reflectance, and (if ``need_back``) its
+    reflectance seen from the far side, each per polarization."""
+    inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
+    reflectance, transmittance, back = {}, {}, {} if need_back else None
+    for pol in _POLARIZATIONS:
         reflectance[pol], transmittance[pol] = fresnel.interface_power_coefficients(
             n_from, n_to, angle_rad=angle_rad, polarization=pol)
-        back[pol], _ = fresnel.interface_power_coefficients(n_to, n_from, angle_rad=inside, polarization=pol)
-    row, share = _share_row(f"{name_from} → {name_to}", "interface", share, transmittance, reflectance)
-    return row, share, reflectance, back
+        if need_back:
+            back[pol], _ = fresnel.interface_power_coefficients(n_to, n_from, angle_rad=inside, polarization=pol)
+    row, share = _share_row(f"{name_from} → {name_to}", "interface", share, transmittance, reflectance=reflectance)
+    return [row], share, reflectance, back
 
 
-def _coating(coating, wavelength_m, n_up, n_down, angle_rad, polarization, share):
-    """A coating's row, the shares after it, its reflectance and that seen from the downstream
-    medium (per polarization)."""
-    angle = angle_rad if coating.angle is None else coating.angle
-    reflectance, transmittance, absorptance, back = {}, {}, {}, {}
-    for pol in _polarizations(polarization):
+def _coating(coating, wavelength_m, n_up, n_down, angle_rad, share, need_back):
+    """A coating's row, the shares after it, its reflectance, and (if ``need_back``) its
+    reflectance seen from the downstream medium, each per polarization."""
+    reflectance, transmittance, absorptance, back = {}, {}, {}, {} if need_back else None
+    for pol in _POLARIZATIONS:
         forward = thinfilm.coherent_stack(coating.layer_index, coating.thickness_m, wavelength_m,
-                                          n_incident=n_up, n_exit=n_down, angle_rad=angle, polarization=pol)
-        backward = thinfilm.coherent_stack(coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m,
-                                           n_incident=n_down, n_exit=n_up,
-                                           angle_rad=_refracted_angle_rad(n_up, angle, n_down), polarization=pol)
+                                          n_incident=n_up, n_exit=n_down, angle_rad=angle_rad, polarization=pol)
         reflectance[pol], transmittance[pol] = forward.reflectance, forward.transmittance
-        # 1 - R - T rounds to about -1e-16 for lossless layers
-        absorptance[pol], back[pol] = np.maximum(forward.absorptance, 0.0), backward.reflectance
-    row, share = _share_row(coating.name, "coating", share, transmittance, reflectance, absorptance)
+        absorptance[pol] = np.maximum(forward.absorptance, 0.0)  # 1 - R - T rounds to -1e-16 when lossless
+        if need_back:
+            back[pol] = thinfilm.coherent_stack(
+                coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m, n_incident=n_down,
+                n_exit=n_up, angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad),
+                polarization=pol).reflectance
+    row, share = _share_row(coating.name, "coating", share, transmittance, reflectance=reflectance,
+                            absorptance=absorptance)
     return [row], share, reflectance, back
 
 
@@ -182,59 +174,55 @@ class _Carrier:
 
     segment: object
     exit_angle_rad: np.ndarray | float  # ray angle inside it, at its exit face
-    polarization: str
     share: dict  # case -> polarization -> power share of the light inside it
     back_reflectance: dict | None  # polarization -> of its entry face, seen from inside
     single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
 
 
-def _joint(upstream, segment, joint, coating, wavelength_m):
-    """Rows between two media and the ray entering ``segment``.
-
-    Returns (rows, shares after them, reflectance of the first face met, back-reflectance of the
-    last face (both per polarization, None without a face), angle in the upstream medium,
-    polarization).
-    """
+def _joint_faces(upstream, segment, joint, coating, wavelength_m, angle_rad, share):
+    """Rows between two media: (rows, shares after them, reflectance of the first face met,
+    back-reflectance of the last face); reflectances per polarization, ``None`` without a face."""
     n_up, n_down = upstream.segment.medium_index(), segment.medium_index()
-    if segment.angle is not None:
-        angle, polarization = segment.angle, segment.polarization
-    else:
-        angle, polarization = upstream.exit_angle_rad, upstream.polarization
-    if coating is not None and coating.polarization is not None:
-        polarization = coating.polarization
-    share = upstream.share if polarization == upstream.polarization else _even_share(polarization)
+    need_back = getattr(segment, "multiple_reflections", False)
     if coating is not None:
-        return (*_coating(coating, wavelength_m, n_up, n_down, angle, polarization, share), angle, polarization)
+        return _coating(coating, wavelength_m, n_up, n_down, angle_rad, share, need_back)
     kind = "physical-contact" if joint is None else joint.joint_type
     if kind == "index-matched" or (kind == "physical-contact" and np.array_equal(n_up, n_down)):
-        return [], share, None, None, angle, polarization
+        return [], share, None, None
     if kind == "air-gap":
         n_gap, gap_name = joint.gap_medium_index(), f"{joint.name} gap"
-        first, share, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle, polarization, share)
-        angle_gap = _refracted_angle_rad(n_up, angle, n_gap)
-        second, share, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, polarization, share)
-        return [first, second], share, reflectance, back, angle, polarization
-    row, share, reflectance, back = _face(upstream.segment.name, segment.name, n_up, n_down, angle, polarization,
-                                          share)
-    return [row], share, reflectance, back, angle, polarization
+        first, share, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle_rad, share, False)
+        angle_gap = fresnel.refraction_angle_rad(n_up, n_gap, angle_rad)
+        second, share, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, share, need_back)
+        return first + second, share, reflectance, back
+    return _face(upstream.segment.name, segment.name, n_up, n_down, angle_rad, share, need_back)
 
 
 def _multiple_reflections_row(carrier, exit_reflectance, share):
     """The incoherent sum of the light bouncing between a medium's two faces, as a (negative) loss.
 
     T = T1·τ·T2 / (1 − R1'·R2·τ²) per polarization: the single-pass rows give T1·τ·T2, this row
-    the factor 1/(1 − R1'·R2·τ²), with τ the single-pass bulk transmittance (Born & Wolf,
-    "Principles of Optics", 1999, the incoherent sum over a thick plate; Katsidis & Siapkas,
-    Appl. Opt. 41, 3978 (2002)). Returns the row and the shares after it.
+    the factor :func:`linkbudget.physics.thinfilm.round_trip_factor`, with τ the single-pass
+    bulk transmittance. Returns the row and the shares after it.
     """
     losses, after = {}, {}
     for case, single_pass_db in carrier.single_pass_db.items():
         tau = transmittance_from_loss_db(single_pass_db)
-        factor = {pol: 1.0 / (1.0 - carrier.back_reflectance[pol] * exit_reflectance[pol] * tau ** 2)
-                  for pol in exit_reflectance}
+        factor = {pol: thinfilm.round_trip_factor(carrier.back_reflectance[pol], exit_reflectance[pol], tau)
+                  for pol in _POLARIZATIONS}
         passed, after[case] = _pass(share[case], factor)
         losses[case] = loss_db_from_transmittance(passed)
     return Row(f"{carrier.segment.name} multiple reflections", "reflections", losses), after
+
+
+def _noted(notes, owner, function, *args):
+    """``function(*args)``, with the :class:`ValidityWarning` s it raises added to ``notes`` for ``owner``."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", ValidityWarning)
+        value = function(*args)
+    messages = dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, ValidityWarning))
+    notes.extend(f"{owner}: {message}" for message in messages)
+    return value
 
 
 def budget_rows(segments, wavelength_m):
@@ -242,42 +230,48 @@ def budget_rows(segments, wavelength_m):
 
     Between two consecutive segments that carry a medium the engine inserts their interface
     (Fresnel, at the angle the downstream segment gives, or the one the upstream segment's
-    tilted faces give its exit face), or the coating that sits between them, or what the joint
-    of a connector or splice between them says (index-matched: nothing; air gap: two faces).
-    A medium's ``angle`` tilts both of its (parallel) faces and lengthens its path by 1/cos θ;
-    the tilt carries on through media in contact with it and ends at the next gap, fibre or
-    waveguide. Through oblique faces the s and p powers are followed separately. No interface is
-    added before the first segment or after the last.
+    tilted faces give its exit face), or the coating that sits between them (at the same angle),
+    or what the joint of a connector or splice between them says (index-matched: nothing; air
+    gap: two faces). Joints and elements pass the light on between two media; a fibre,
+    waveguide or splitter without a medium of its own ends the run of faces (the light is
+    guided in between). A medium's ``angle`` tilts both of its (parallel) faces and lengthens its
+    path by 1/cos θ; the tilt carries on through media in contact with it and ends at the next
+    gap, fibre or waveguide. Through every face the s and p powers are followed separately (a
+    segment's ``polarization`` states the light arriving at it; unpolarized at the start). No
+    interface is added before the first segment or after the last.
 
-    Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised while
-    evaluating each segment, prefixed by its name.
+    Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised by each segment's
+    own model (its mode, its loss), prefixed by its name.
     """
-    rows, upstream, joint, coating, notes = [], None, None, None, []
+    notes = []
+    modes = [_noted(notes, segment.name, segment.mode, wavelength_m) for segment in segments]
+    rows, upstream, joint, coating = [], None, None, None
     for position, segment in enumerate(segments):
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", ValidityWarning)
-            upstream, joint, coating = _add_segment_rows(
-                rows, segments, position, wavelength_m, upstream, joint, coating)
-        notes += [f"{segment.name}: {message}" for message in dict.fromkeys(str(w.message) for w in caught)]
+        around = {"mode_before": modes[position - 1] if position else None,
+                  "mode_after": modes[position + 1] if position + 1 < len(segments) else None}
+        upstream, joint, coating = _noted(notes, segment.name, _add_segment_rows, rows, segment, around,
+                                          wavelength_m, upstream, joint, coating)
     return tuple(rows), tuple(notes)
 
 
-def _add_segment_rows(rows, segments, position, wavelength_m, upstream, joint, coating):
-    """Append the rows of ``segments[position]`` (and the faces before it); return the new state."""
-    segment = segments[position]
-    neighbours = {"before": segments[position - 1] if position else None,
-                  "after": segments[position + 1] if position + 1 < len(segments) else None}
-    if segment.kind == "coating":
+def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating):
+    """Append the rows of ``segment`` (and the faces before it); return the new state."""
+    if segment.is_coating:
         return upstream, joint, segment
     index = segment.medium_index()
     if index is None:
-        rows.append(segment.budget_row(wavelength_m, **neighbours))
-        return upstream, segment if hasattr(segment, "joint") else joint, coating
-    back_reflectance, angle, polarization = None, 0.0, segment.polarization
-    share = _even_share(polarization)
+        rows.append(segment.budget_row(wavelength_m, **around))
+        if not segment.passes_faces:
+            return None, None, None
+        return upstream, segment if segment.sets_joint else joint, coating
+    back_reflectance, angle = None, 0.0
+    polarization = segment.polarization or "unpolarized"
+    share = _stated_share(polarization)
     if upstream is not None:
-        joint_rows, share, reflectance, back_reflectance, angle, polarization = _joint(
-            upstream, segment, joint, coating, wavelength_m)
+        angle = upstream.exit_angle_rad if segment.angle is None else segment.angle
+        share = upstream.share if segment.polarization is None else share
+        joint_rows, share, reflectance, back_reflectance = _joint_faces(
+            upstream, segment, joint, coating, wavelength_m, angle, share)
         rows.extend(joint_rows)
         if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
             reflections, share = _multiple_reflections_row(upstream, reflectance, share)
@@ -285,12 +279,11 @@ def _add_segment_rows(rows, segments, position, wavelength_m, upstream, joint, c
     n_before = index if upstream is None else upstream.segment.medium_index()
     # a tilt carries on through media in contact (their faces are parallel to the tilted one);
     # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
-    carries_tilt = segment.angle is not None or segment.kind == "medium"
-    inside = _refracted_angle_rad(n_before, angle, index) if carries_tilt else 0.0
-    with np.errstate(divide="ignore"):
-        bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **neighbours)
+    carries_tilt = segment.angle is not None or segment.parallel_faces
+    inside = fresnel.refraction_angle_rad(n_before, index, angle) if carries_tilt else 0.0
+    bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **around)
     rows.append(bulk)
-    upstream = _Carrier(segment, inside, polarization, share, back_reflectance,
+    upstream = _Carrier(segment, inside, share, back_reflectance,
                         bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
     return upstream, None, None
 

@@ -43,8 +43,8 @@ import numpy as np
 import yaml
 
 from linkbudget.materials import dispersion
-from linkbudget.units import UNITS
 from linkbudget.materials.dispersion import require_in_range
+from linkbudget.units import UNITS
 
 _CATALOG = resources.files(__package__).joinpath("catalog")
 # The C build of the safe loader when present: the water table loads in ~20 ms instead of ~150 ms.

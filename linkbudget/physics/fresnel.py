@@ -43,6 +43,9 @@ _BRANCH_TOLERANCE = 100.0 * np.finfo(float).eps
 # link-budget figure, so smaller defects are not worth a warning.
 _CROSS_TERM_TOLERANCE = 1e-6
 
+# The largest ray angle returned by refraction_angle_rad: just below grazing incidence.
+_GRAZING_RAD = np.nextafter(np.pi / 2, 0.0)
+
 
 def _validated_index(index, name):
     """Complex index array of a passive medium: finite, Re N > 0 and κ = Im N ≥ 0.
@@ -299,6 +302,37 @@ def _real_index(index, name):
     if np.any(array.imag != 0):
         raise ValueError(f"{name} must be lossless (real) here, got {array}")
     return array.real
+
+
+def refraction_angle_rad(n1, n2, angle_rad):
+    """Ray angle in the second medium by Snell's law on the real parts of the indices.
+
+    Parameters
+    ----------
+    n1, n2 : array_like of complex
+        Indices of the first and second medium (only the real parts enter).
+    angle_rad : array_like
+        Ray angle in the first medium [rad].
+
+    Returns
+    -------
+    numpy.ndarray
+        θ2 = arcsin(Re(N1)·sin θ1 / Re(N2)) [rad]; beyond the critical angle (no transmitted
+        ray) just below π/2, so that the result is still a valid angle of incidence for
+        :func:`interface_power_coefficients`, which then gives T = 0.
+
+    Notes
+    -----
+    n1·sin θ1 = n2·sin θ2 [1]_, [2]_; the real-part form is the geometric ray direction in a
+    weakly absorbing medium (the complex form is in :func:`cos_theta_in`).
+
+    References
+    ----------
+    .. [1] Born & Wolf, "Principles of Optics", 1999.
+    .. [2] Hecht, "Optics", 2017.
+    """
+    sine = np.real(np.asarray(n1, dtype=complex)) * np.sin(angle_rad) / np.real(np.asarray(n2, dtype=complex))
+    return np.minimum(np.arcsin(np.clip(sine, -1.0, 1.0)), _GRAZING_RAD)
 
 
 def brewster_angle_rad(n1, n2):

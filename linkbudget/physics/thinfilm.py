@@ -241,6 +241,38 @@ def quarter_wave_thickness_m(n, design_wavelength_m, *, order=1):
     return order * wavelength / (4.0 * _validated_index(n, "n").real)
 
 
+def round_trip_factor(entry_reflectance_inside, exit_reflectance, single_pass_transmittance):
+    """Gain of a thick slab's transmittance from its internal round trips, summed incoherently.
+
+    Parameters
+    ----------
+    entry_reflectance_inside : array_like
+        R1': power reflectance of the entry face seen from inside the slab.
+    exit_reflectance : array_like
+        R2: power reflectance of the exit face seen from inside the slab.
+    single_pass_transmittance : array_like
+        τ: internal transmittance of one pass through the slab.
+
+    Returns
+    -------
+    numpy.ndarray
+        1 / (1 − R1'·R2·τ²) (≥ 1), the factor between the single-pass T1·τ·T2 and the slab's
+        incoherent transmittance.
+
+    Notes
+    -----
+    The geometric series Σ (R1'·R2·τ²)^m of the intensities of the internal round trips [3]_, [4]_.
+
+    References
+    ----------
+    .. [3] C. C. Katsidis and D. I. Siapkas, Appl. Opt. 41, 3978 (2002), doi:10.1364/AO.41.003978.
+    .. [4] M. Born and E. Wolf, "Principles of Optics", 7th ed., 1999.
+    """
+    round_trip = np.asarray(entry_reflectance_inside) * np.asarray(exit_reflectance) * np.asarray(
+        single_pass_transmittance) ** 2
+    return 1.0 / (1.0 - round_trip)
+
+
 def incoherent_slab(
     n_slab,
     thickness_m,
@@ -330,12 +362,9 @@ def incoherent_slab(
         _, refl_rear, trans_rear = _face(pol, n_mid, n_out, cos_mid, cos_out)
         cross_term = max(cross_term, _incident_cross_term(pol, n_in, cos_in, r_front))
         if multiple_reflections:
-            # Geometric series of internal round trips (Katsidis & Siapkas [3]).
-            round_trips = 1.0 - refl_inside * refl_rear * tau**2
-            transmittances.append(trans_front * tau * trans_rear / round_trips)
-            reflectances.append(
-                refl_front + trans_front * trans_inside * refl_rear * tau**2 / round_trips
-            )
+            round_trips = round_trip_factor(refl_inside, refl_rear, tau)
+            transmittances.append(trans_front * tau * trans_rear * round_trips)
+            reflectances.append(refl_front + trans_front * trans_inside * refl_rear * tau**2 * round_trips)
         else:
             transmittances.append(trans_front * tau * trans_rear)
             reflectances.append(refl_front)

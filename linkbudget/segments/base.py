@@ -1,6 +1,7 @@
 """What every segment kind shares: its name and kind keys, and the evaluation contract."""
 
 from dataclasses import dataclass, field
+from typing import ClassVar
 
 import numpy as np
 
@@ -72,6 +73,17 @@ class SegmentSpec(Strict):
 
     name: str | None = None
 
+    #: How the engine treats a segment that carries no medium: a joint or an element passes the
+    #: light on between the media on either side (``passes_faces``); anything else (a fibre or
+    #: waveguide without an index, a splitter) guides it and ends the run of faces.
+    passes_faces: ClassVar[bool] = False
+    #: The segment is a joint whose ``joint_type`` sets the faces between the media around it.
+    sets_joint: ClassVar[bool] = False
+    #: The segment is a coating on the face between its neighbours.
+    is_coating: ClassVar[bool] = False
+    #: A tilt of the face before it carries on inside (a plate in contact: parallel faces).
+    parallel_faces: ClassVar[bool] = False
+
     def resolve(self, wavelength_m, base_dir):
         """Check what needs the wavelength axis or other files (materials); return the segment.
 
@@ -90,9 +102,9 @@ class SegmentSpec(Strict):
         """
         return None
 
-    def budget_row(self, wavelength_m, *, before=None, after=None):
-        """The segment's :class:`Row`; ``before``/``after`` are its neighbours in the chain
-        (joints and gaps couple to their modes)."""
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
+        """The segment's :class:`Row`; ``mode_before``/``mode_after`` are the modes of its
+        neighbours in the chain (joints and gaps couple to them)."""
         losses = {case: self.loss_db(wavelength_m, case) for case in CASES}
         return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
 

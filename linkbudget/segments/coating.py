@@ -5,21 +5,20 @@ the coherent transfer-matrix method (:func:`linkbudget.physics.thinfilm.coherent
 between the media of its two neighbours.
 """
 
-from typing import Literal
+from typing import ClassVar, Literal
 
 import numpy as np
 from pydantic import Field, PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     ComplexIndex,
-    InputProblem,
     Strict,
     integer,
     quantity,
 )
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
 from linkbudget.segments.base import SegmentSpec
-from linkbudget.segments.optics import MAX_ANGLE_RAD, Polarization, resolve_index
+from linkbudget.segments.optics import resolve_index
 
 
 class Layer(Strict):
@@ -56,17 +55,18 @@ class Layer(Strict):
 
 
 class Coating(SegmentSpec):
-    """A thin-film stack on the interface between the segments before and after it."""
+    """A thin-film stack on the interface between the segments before and after it.
+
+    It sees the light at the angle and polarization of that face: the ``angle`` and
+    ``polarization`` of the coated segment after it (or the tilt carried from before).
+    """
 
     kind: Literal["coating"]
     layers: list[Layer] = Field(min_length=1)
-    angle: quantity("angle", minimum=0.0) | None = None
-    polarization: Polarization | None = None
     _stack: tuple | None = PrivateAttr(default=None)
+    is_coating: ClassVar[bool] = True
 
     def resolve(self, wavelength_m, base_dir):
-        if self.angle is not None and self.angle > MAX_ANGLE_RAD:
-            raise InputProblem(("angle",), "angle of incidence must be below 89 deg")
         resolved = [layer.resolve(wavelength_m, base_dir, ("layers", number))
                     for number, layer in enumerate(self.layers)]
         self._stack = (np.array([index for index, _ in resolved]), np.array([t for _, t in resolved]))

@@ -7,7 +7,7 @@ shown beside it. ``element`` is a fixed loss or gain. A datasheet loss is the sa
 wavelength; its spread (``{min, typ, max}`` or ``{mean, sigma}``) sets the budget cases.
 """
 
-from typing import Literal
+from typing import ClassVar, Literal
 
 import numpy as np
 from pydantic import PrivateAttr, model_validator
@@ -49,6 +49,9 @@ class _Joint(SegmentSpec):
     the gap, and ``tilt`` is measured in it (Ghatak & Thyagarajan's convention), air included
     when the joint has no gap.
     """
+
+    passes_faces: ClassVar[bool] = True
+    sets_joint: ClassVar[bool] = True
 
     loss: LossSpread | None = None
     joint: JointType | None = None
@@ -96,24 +99,22 @@ class _Joint(SegmentSpec):
         """Index of the medium in the gap over the wavelength axis, else ``None``."""
         return self._gap_index
 
-    def side_modes(self, wavelength_m, before, after):
+    def side_modes(self, wavelength_m, mode_before, mode_after):
         """(mode before, mode after): the explicit diameters, else the neighbours' modes."""
-        def side(diameter, neighbour):
-            if diameter is not None:
-                return Mode.from_spread(diameter, diameter, wavelength_m)
-            return None if neighbour is None else neighbour.mode(wavelength_m)
+        def side(diameter, neighbour_mode):
+            return neighbour_mode if diameter is None else Mode.from_spread(diameter, diameter, wavelength_m)
 
-        return (side(self.mode_field_diameter_before, before), side(self.mode_field_diameter_after, after))
+        return side(self.mode_field_diameter_before, mode_before), side(self.mode_field_diameter_after, mode_after)
 
-    def geometric_losses_db(self, wavelength_m, before, after):
+    def geometric_losses_db(self, wavelength_m, mode_before, mode_after):
         """Coupling loss per case from the joint's geometry (Gaussian overlap of the two modes)."""
-        mode_before, mode_after = self.side_modes(wavelength_m, before, after)
+        mode_before, mode_after = self.side_modes(wavelength_m, mode_before, mode_after)
         n_gap = np.real(self._gap_index)
         return coupling_losses_db(wavelength_m, mode_before, mode_after, offset=self.offset, tilt=self.tilt,
                                   separation=self.gap, n=n_gap)
 
-    def budget_row(self, wavelength_m, *, before=None, after=None):
-        geometric = self.geometric_losses_db(wavelength_m, before, after) if self.geometric else None
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
+        geometric = self.geometric_losses_db(wavelength_m, mode_before, mode_after) if self.geometric else None
         if self.loss is None:
             return Row(self.name, self.kind, geometric)
         datasheet = {case: self.loss_db(wavelength_m, case) for case in CASES}
@@ -139,13 +140,15 @@ class Splice(_Joint):
     def loss_db(self, wavelength_m, case):
         return flat_over_wavelength(self.count * self.loss.at(case), wavelength_m)
 
-    def geometric_losses_db(self, wavelength_m, before, after):
+    def geometric_losses_db(self, wavelength_m, mode_before, mode_after):
         return {case: self.count * loss for case, loss in super().geometric_losses_db(
-            wavelength_m, before, after).items()}
+            wavelength_m, mode_before, mode_after).items()}
 
 
 class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
+
+    passes_faces: ClassVar[bool] = True
 
     kind: Literal["element"]
     loss: SignedLossSpread

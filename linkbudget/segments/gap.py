@@ -98,30 +98,29 @@ class Gap(Bulk):
         alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=model(visibility_m, wavelength_m) / 1e3)
         return flux.loss_db(alpha, self.path_length_m(case) / cos_inside)
 
-    def launched_mode(self, wavelength_m, before):
+    def launched_mode(self, wavelength_m, mode_before):
         """The beam entering the gap: its ``beam``, else the mode of the segment before it."""
         if self.beam is not None:
             return self.beam.mode(wavelength_m, np.real(self.medium_index()))
-        return None if before is None else before.mode(wavelength_m)
+        return mode_before
 
-    def beam_losses_db(self, wavelength_m, before, after):
+    def beam_losses_db(self, wavelength_m, mode_before, mode_after):
         """Beam coupling loss per case, or ``None`` when an end of the beam is not known."""
-        launched = self.launched_mode(wavelength_m, before)
+        launched = self.launched_mode(wavelength_m, mode_before)
         n = np.real(self.medium_index())
         if launched is None:
             return None
         if self.aperture is not None:
             return aperture_losses_db(wavelength_m, launched, distance=self.length,
                                       aperture_diameter=self.aperture, n=n)
-        received = None if after is None else after.mode(wavelength_m)
-        if received is None:
+        if mode_after is None:
             return None
-        return coupling_losses_db(wavelength_m, launched, received, offset=self.offset, tilt=self.tilt,
+        return coupling_losses_db(wavelength_m, launched, mode_after, offset=self.offset, tilt=self.tilt,
                                   separation=self.length, n=n)
 
-    def budget_row(self, wavelength_m, *, before=None, after=None, cos_inside=1.0):
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, cos_inside=1.0):
         ambient = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
-        beam = self.beam_losses_db(wavelength_m, before, after)
+        beam = self.beam_losses_db(wavelength_m, mode_before, mode_after)
         if beam is None:
             return Row(self.name, self.kind, ambient, {"beam": "not evaluated: no launched beam or receiving side"})
         total = {case: ambient[case] + beam[case] for case in CASES}

@@ -6,7 +6,7 @@ one of them into the intensity attenuation coefficient α, and
 converts a medium's loss.
 """
 
-from typing import Literal
+from typing import ClassVar, Literal
 
 import numpy as np
 from pydantic import model_validator
@@ -145,6 +145,8 @@ class Medium(Bulk):
     which then replaces the material's κ. With ``multiple_reflections: true`` the light bouncing
     between its two faces is summed incoherently.
     """
+
+    parallel_faces: ClassVar[bool] = True
 
     kind: Literal["medium"]
     thickness: LengthSpread | None = None

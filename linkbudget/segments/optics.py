@@ -57,13 +57,14 @@ class OpticalSegment(SegmentSpec):
 
     ``angle`` is the angle of incidence on the segment's entry face, in the medium before it;
     its faces are taken parallel, so the exit face sees the refracted angle. ``polarization``
-    applies to both faces (default: unpolarized).
+    states the light arriving at the entry face (``s``, ``p`` or ``unpolarized``); without it
+    the light keeps the s and p shares the faces before left it with (unpolarized at the start).
     """
 
     index: ComplexIndex | None = None
     material: str | None = None
     angle: quantity("angle", minimum=0.0) | None = None
-    polarization: Polarization = "unpolarized"
+    polarization: Polarization | None = None
     _index: np.ndarray | None = PrivateAttr(default=None)
 
     def resolve(self, wavelength_m, base_dir):
@@ -82,7 +83,7 @@ class OpticalSegment(SegmentSpec):
         """Complex index over the wavelength axis, or ``None`` if the segment carries no medium."""
         return self._index
 
-    def budget_row(self, wavelength_m, *, before=None, after=None, cos_inside=1.0):
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, cos_inside=1.0):
         """The bulk row; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
         losses = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
         return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
