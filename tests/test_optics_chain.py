@@ -530,3 +530,31 @@ def test_oblique_ray_continues_into_the_next_medium():
     assert_allclose(row(result, "B").loss_db["typ"], [1 / np.cos(theta_b)], rtol=1e-12)
     exit_face = tmm.coh_tmm("s", [2.0, 1.0], [np.inf, np.inf], theta_b, 1550.0)
     assert_allclose(row(result, "B → out").detail["reflectance"], [exit_face["R"]], rtol=0, atol=TIGHT)
+
+
+def test_polarized_plate_with_reflections_before_an_angled_block_keeps_both_shares():
+    # An s-polarized tilted plate summing its reflections, then a block at its own angle: the s
+    # share carries on (the block states no polarization), so the exit face of the plate and the
+    # block's face see s light only; the plate's total matches tmm.inc_tmm for s (Katsidis &
+    # Siapkas 2002, through the reference library).
+    result = evaluate([
+        {"name": "air", "kind": "gap", "length": "1 mm", "index": 1.0},
+        {"name": "plate", "kind": "medium", "thickness": "1 mm", "index": 1.5, "angle": "10 deg",
+         "polarization": "s", "multiple_reflections": True},
+        {"name": "block", "kind": "medium", "thickness": "1 mm", "index": 1.7},
+    ])
+    kinds = [row.kind for row in result.rows]
+    assert kinds == ["gap", "interface", "medium", "interface", "reflections", "medium"]
+    expected = tmm.inc_tmm("s", [1.0, 1.5, 1.7], [np.inf, 1e3, np.inf], ["i", "i", "i"], np.deg2rad(10), 1550)["T"]
+    assert_allclose(result.cumulative_loss_db["typ"][-1], -10 * np.log10([expected]), rtol=1e-9)
+
+
+def test_guided_fibre_without_index_ends_the_faces():
+    # A fibre without an index guides the light between a gap and a window: no air → glass face is
+    # computed across it (the fibre declares no faces of its own).
+    result = evaluate([
+        {"name": "launch", "kind": "gap", "length": "1 mm"},
+        {"name": "pigtail", "kind": "fiber", "length": "2 km", "attenuation": "0.3 dB/km"},
+        {"name": "window", "kind": "medium", "thickness": "1 mm", "material": "fused-silica"},
+    ])
+    assert [row.kind for row in result.rows] == ["gap", "fiber", "medium"]

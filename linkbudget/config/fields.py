@@ -136,6 +136,8 @@ class SpreadBase(Strict):
 
     #: Lower physical bound of the values (a normal spread's low end is clipped to it).
     minimum: ClassVar[float | None] = None
+    #: The values must be > 0 (a diameter, a visibility): a normal spread must not reach 0.
+    strictly_positive: ClassVar[bool] = False
 
     min: Any = None
     typ: Any = None
@@ -154,6 +156,9 @@ class SpreadBase(Strict):
         if given & {"mean", "sigma"}:
             if given != {"mean", "sigma"}:
                 raise ValueError("a normal spread is written {mean, sigma} and nothing else")
+            if self.strictly_positive and self.low <= 0:
+                raise InputProblem(("sigma",), f"mean - {SIGMA_SPAN:g} sigma must stay > 0 for this value",
+                                   "the worst case spans mean ± 3 sigma; give a smaller sigma or {min, typ, max}")
             return self
         if self.typ is None and not {"min", "max"} <= given:
             raise ValueError("a spread needs typ, or both min and max")
@@ -215,4 +220,5 @@ def spread(dimension, *, minimum=None, strictly_positive=False):
         sigma=(width | None, None),
     )
     model.minimum = minimum
+    model.strictly_positive = strictly_positive
     return model

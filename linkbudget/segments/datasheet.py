@@ -24,6 +24,7 @@ from linkbudget.segments.base import (
     LengthSpread,
     LossSpread,
     Mode,
+    PositiveLengthSpread,
     Row,
     SegmentSpec,
     SignedLossSpread,
@@ -60,8 +61,8 @@ class _Joint(SegmentSpec):
     gap: LengthSpread | None = None
     gap_material: str | None = None
     gap_index: ComplexIndex | None = None
-    mode_field_diameter_before: LengthSpread | None = None
-    mode_field_diameter_after: LengthSpread | None = None
+    mode_field_diameter_before: PositiveLengthSpread | None = None
+    mode_field_diameter_after: PositiveLengthSpread | None = None
     _gap_index: np.ndarray | None = PrivateAttr(default=None)
 
     @model_validator(mode="after")

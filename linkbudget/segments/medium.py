@@ -20,6 +20,7 @@ from linkbudget.segments.base import (
     KappaSpread,
     LengthSpread,
     Mode,
+    PositiveLengthSpread,
 )
 from linkbudget.segments.optics import OpticalSegment
 
@@ -69,7 +70,7 @@ class Fiber(OpticalSegment):
     kind: Literal["fiber"]
     length: LengthSpread
     attenuation: AttenuationSpread
-    mode_field_diameter: LengthSpread | None = None
+    mode_field_diameter: PositiveLengthSpread | None = None
     core_diameter: quantity("length", strictly_positive=True) | None = None
     numerical_aperture: number(strictly_positive=True) | None = None
 

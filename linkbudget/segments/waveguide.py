@@ -51,12 +51,6 @@ class ModeSize(Strict):
     height: PositiveLengthSpread
 
 
-def _check_diameter(diameter, key_path):
-    if diameter.low <= 0:
-        raise InputProblem(key_path, "a mode-field diameter must stay > 0 at the low end of its spread "
-                           f"(got {diameter.low:g} m)", "for {mean, sigma}, mean - 3 sigma must be > 0")
-
-
 class Waveguide(OpticalSegment):
     """An on-chip waveguide of ``length`` with its propagation loss, bends and crossings.
 
@@ -87,11 +81,6 @@ class Waveguide(OpticalSegment):
             raise InputProblem(("effective_index",), "give attenuation or effective_index, not both")
         if self.mode_field_diameter is not None and self.mode_size is not None:
             raise InputProblem(("mode_size",), "give mode_field_diameter or mode_size, not both")
-        if self.mode_field_diameter is not None:
-            _check_diameter(self.mode_field_diameter, ("mode_field_diameter",))
-        if self.mode_size is not None:
-            _check_diameter(self.mode_size.width, ("mode_size", "width"))
-            _check_diameter(self.mode_size.height, ("mode_size", "height"))
         return self
 
     def loss_parts_db(self, wavelength_m, case):

@@ -97,6 +97,11 @@ CASES = [
          "count: |many", "chain[2].count", ("expected a whole number", "'many'")),
     Case("chain-item-not-a-mapping", append("  - just some text\n"),
          "  - |just some text", "chain[2]", ("a chain item must be a mapping",)),
+    Case("normal-spread-reaching-zero", append(
+        "  - kind: gap\n    length: 1 km\n    visibility: {mean: 1 km, sigma: 0.5 km}\n"),
+         "sigma: |0.5 km", "chain[2].visibility.sigma", ("mean - 3 sigma must stay > 0",)),
+    Case("zero-mode-field-diameter", edit("length: 2 km", "length: 2 km\n    mode_field_diameter: 0 um"),
+         "mode_field_diameter: |0 um", "chain[0].mode_field_diameter", ("must be > 0",)),
     Case("negative-length", edit("length: 2 km", "length: -2 km"),
          "length: |-2 km", "chain[0].length", ("must not be negative",)),
     Case("index-kappa-below-zero", append(WINDOW + "    index: 1.45-1e-6j\n"),

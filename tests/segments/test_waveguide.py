@@ -166,7 +166,7 @@ GUIDE = {"kind": "waveguide", "length": "1 mm"}
     ({"effective_index": "2.4-1e-5j"}, "chain[0].effective_index", ("passive medium",)),
     ({"attenuation": "-2 dB/cm"}, "chain[0].attenuation", ("must not be negative",)),
     ({"attenuation": "2 dB/cm", "mode_field_diameter": {"mean": "1 um", "sigma": "0.5 um"}},
-     "chain[0].mode_field_diameter", ("> 0", "mean - 3 sigma")),
+     "chain[0].mode_field_diameter.sigma", ("> 0", "mean - 3 sigma")),
     ({"attenuation": "2 dB/cm", "mode_size": {"width": "3 um"}}, "chain[0].mode_size",
      ("missing required key 'height'",)),
     ({"attenuation": "2 dB/cm", "mode_field_diameter": "0 um"}, "chain[0].mode_field_diameter", ("> 0",)),
