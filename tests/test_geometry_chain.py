@@ -396,3 +396,16 @@ def test_error_gap_beam_without_a_receiving_side(after):
     path, message = only_problem(chain + ([after] if after else []))
     assert path == "chain[0].beam"
     assert "receiving side" in message
+
+
+def test_gap_aperture_best_case_takes_the_waist_that_spreads_least():
+    # w(z) = w0·√(1 + (λz/(π·w0²))²) is smallest at w0* = √(λz/π) (Siegman, Lasers, 1986): with a
+    # waist toleranced across w0*, the best case (the overload check) is the power through the
+    # aperture at w0*, not at a corner of the waist range.
+    result = evaluate([{"name": "path", "kind": "gap", "length": "1 m", "index": 1.0,
+                        "beam": {"waist": {"min": "0.3 mm", "typ": "1 mm", "max": "2 mm"}}, "aperture": "2 mm"}])
+    least_waist = np.sqrt(WL * 1.0 / np.pi)
+    spot = least_waist * np.sqrt(1 + (WL * 1.0 / (np.pi * least_waist**2)) ** 2)
+    best = -10 * np.log10(1 - np.exp(-2 * (1e-3) ** 2 / spot**2))
+    assert_allclose(row(result, "path").loss_db["best"], [best], rtol=1e-9)
+    assert row(result, "path").loss_db["best"][0] < row(result, "path").loss_db["typ"][0]

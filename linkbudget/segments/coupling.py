@@ -4,9 +4,12 @@ Both sides are :class:`~linkbudget.segments.base.Mode` s (a fibre's, a waveguide
 launched beam's waist). The coupling is the Gaussian overlap
 (:func:`linkbudget.physics.gaussian.coupling_efficiency_1d` on each transverse axis, η = η_x·η_y).
 Every toleranced value (offset, tilt, separation, each side's mode-field diameter) is a spread;
-the worst case is the smallest coupling over all corners of the tolerance box, the best case
-the largest. (Coupling falls monotonically in each value alone; where it does not, as a gap with
-an offset, the corners remain the usual tolerance stack-up, common practice.)
+the worst case is the smallest coupling over the corners of the tolerance box, the best case the
+largest. The typical point and the interior points where coupling peaks are candidates too: equal
+mode sizes where the two sides' ranges overlap, and the waist that spreads least over a gap, so
+that the best case (the overload check) is not optimistic where coupling is not monotonic in a
+value. (The corners as the extremes of a tolerance stack-up are common practice; coupling falls
+monotonically in offset, tilt and separation alone, not always in a mode size.)
 """
 
 import itertools
@@ -74,17 +77,27 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     .. [1] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56, 703 (1977).
     .. [2] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998, eqs. 8.69/8.75/8.81.
     """
-    mode_ends = ("low", "high")
     corners = [
-        _efficiency(wavelength_m, before.radius_x_m[b], before.radius_y_m[b], after.radius_x_m[a],
-                    after.radius_y_m[a], d, theta, gap, n)
-        for b, a, d, theta, gap in itertools.product(
-            mode_ends, mode_ends, _ends(offset), _ends(tilt), _ends(separation))
+        _efficiency(wavelength_m, bx, by, ax, ay, d, theta, gap, n)
+        for (bx, by), (ax, ay), d, theta, gap in itertools.product(
+            _mode_candidates(before, after), _mode_candidates(after, before),
+            _ends(offset), _ends(tilt), _ends(separation))
     ]
     typical = _efficiency(wavelength_m, before.radius_x_m["typ"], before.radius_y_m["typ"],
                           after.radius_x_m["typ"], after.radius_y_m["typ"],
                           _typ(offset), _typ(tilt), _typ(separation), n)
     return _case_losses_db(typical, corners)
+
+
+def _mode_candidates(mode, other):
+    """(x, y) radii of ``mode`` to search: the ends of its spread, and the ends of ``other``'s
+    clipped into its range (where the ranges overlap, equal sizes couple best)."""
+    def clipped(axis, end):
+        own = getattr(mode, axis)
+        return np.clip(getattr(other, axis)[end], own["low"], own["high"])
+
+    ends = [(mode.radius_x_m[end], mode.radius_y_m[end]) for end in ("low", "high")]
+    return ends + [(clipped("radius_x_m", end), clipped("radius_y_m", end)) for end in ("low", "high")]
 
 
 def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n=1.0):
@@ -93,8 +106,9 @@ def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n
     The launched beam has its waist (``launched`` mode radii) at the start; after ``distance`` its
     radius is w(z) (:func:`linkbudget.physics.gaussian.spot_radius_m`), and the aperture of
     radius a passes T = 1 − exp(−2a²/w²) (:func:`linkbudget.physics.gaussian.aperture_transmission`).
-    An elliptical beam is taken at its larger radius (conservative). Worst and best cases search
-    the corners of the waist, distance and aperture spreads.
+    An elliptical beam is taken at its larger radius (conservative for the margin). Worst and best
+    cases search the corners of the waist, distance and aperture spreads, and the waist
+    w0* = √(λz/(π·n)) that spreads least over the distance z, clipped into the waist's range.
 
     References
     ----------
@@ -106,6 +120,11 @@ def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n
         return gaussian.aperture_transmission(diameter_m / 2, spot_m)
 
     waist = {end: np.maximum(launched.radius_x_m[end], launched.radius_y_m[end]) for end in ("low", "typ", "high")}
-    corners = [transmittance(waist[w], z, a) for w, z, a in itertools.product(
-        ("low", "high"), _ends(distance), _ends(aperture_diameter))]
+
+    def waist_candidates(distance_m):
+        least_spread = np.sqrt(wavelength_m * distance_m / (np.pi * n))  # minimises w(z) (Siegman)
+        return (waist["low"], waist["high"], np.clip(least_spread, waist["low"], waist["high"]))
+
+    corners = [transmittance(w, z, a) for z, a in itertools.product(_ends(distance), _ends(aperture_diameter))
+               for w in waist_candidates(z)]
     return _case_losses_db(transmittance(waist["typ"], _typ(distance), _typ(aperture_diameter)), corners)
