@@ -13,7 +13,7 @@ from pydantic import BaseModel, ValidationError
 
 from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
-from linkbudget.config.source import ConfigError, Mark, Positions, Problem, load_yaml
+from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
 from linkbudget.segments.chain import chain_problems
 
 #: Largest link file read [bytes]; a link is a few kB of text.
@@ -27,12 +27,6 @@ class Link:
     spec: LinkSpec
     segments: tuple
     file: str
-    base_dir: Path
-    positions: Positions
-
-    @property
-    def title(self):
-        return self.spec.title
 
 
 def _model_at(model, loc):
@@ -72,7 +66,7 @@ def _written_path(data, loc):
             node = node[part]
         else:
             break
-    return tuple(path), node
+    return tuple(path)
 
 
 #: Messages of the validation library, by error type, in the tool's own words.
@@ -110,11 +104,11 @@ def problems_from_validation(error, positions, model, data, prefix=()):
             problems.append(positions.problem((*prefix, *loc), f"unknown key '{key}'", hint, at_key=True))
             continue
         if item["type"] == "missing":
-            path, _ = _written_path(data, loc)
+            path = _written_path(data, loc)
             problems.append(positions.problem((*prefix, *path), f"missing required key '{loc[-1]}'"))
             continue
         cause = item.get("ctx", {}).get("error")
-        path, _ = _written_path(data, loc + getattr(cause, "key_path", ()))
+        path = _written_path(data, loc + getattr(cause, "key_path", ()))
         problems.append(positions.problem((*prefix, *path), _message_of(item), getattr(cause, "hint", None)))
     return problems
 
@@ -170,6 +164,7 @@ def parse_link(text, file="<string>", base_dir=None):
         spec = None
         problems += problems_from_validation(error, positions, LinkSpec, data)
     chain = data.get("chain")
+    wavelength_m = None if spec is None else spec.wavelengths_m()
     segments, seen = [], {}
     for index, item in enumerate(chain if isinstance(chain, list) else []):
         segment, found = _validate_segment(item, index, positions)
@@ -178,7 +173,7 @@ def parse_link(text, file="<string>", base_dir=None):
             continue
         if spec is not None:
             try:
-                segment = segment.resolve(spec.wavelengths_m(), Path(base_dir or "."))
+                segment = segment.resolve(wavelength_m, Path(base_dir or "."))
             except InputProblem as problem:
                 problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
                 continue
@@ -190,10 +185,10 @@ def parse_link(text, file="<string>", base_dir=None):
         segments.append(segment)
     if not problems:
         problems = [positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
-                    for index, problem in chain_problems(segments, spec.wavelengths_m())]
+                    for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file, Path(base_dir or "."), positions)
+    return Link(spec, tuple(segments), file)
 
 
 def load_link(path):

@@ -41,8 +41,3 @@ def dbm_from_watt(power_w):
     """Power in dBm of a power in watts, ``10·log10(P / 1 mW)``; ``-inf`` at 0 W."""
     with np.errstate(divide="ignore"):
         return 10.0 * np.log10(np.asarray(power_w, dtype=float) / 1e-3)
-
-
-def watt_from_dbm(power_dbm):
-    """Power in watts of a power in dBm, ``1 mW · 10**(P/10)``."""
-    return 1e-3 * 10.0 ** (np.asarray(power_dbm, dtype=float) / 10.0)

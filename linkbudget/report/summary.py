@@ -77,6 +77,8 @@ def row_note(row, index):
         notes.append(", ".join(f"{part} {float(cases['typ'][index]):.2f}"
                                for part, cases in detail["loss_parts_db"].items()
                                if any(float(cases[case][index]) != 0 for case in cases)))
+    if "return_loss_db" in detail:
+        notes.append(f"return loss {detail['return_loss_db']:.1f} dB")
     if detail.get("port") is not None:
         notes.append(f"port {detail['port']}")
     return "; ".join(notes)

@@ -128,6 +128,12 @@ class Connector(_Joint):
     kind: Literal["connector"]
     return_loss: quantity("ratio", minimum=0.0) | None = None
 
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
+        row = super().budget_row(wavelength_m, mode_before=mode_before, mode_after=mode_after)
+        if self.return_loss is not None:
+            row.detail["return_loss_db"] = self.return_loss
+        return row
+
     def loss_db(self, wavelength_m, case):
         return flat_over_wavelength(self.loss.at(case), wavelength_m)
 

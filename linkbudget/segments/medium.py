@@ -1,4 +1,4 @@
-"""Bulk absorbing media, fibres and free-space gaps: loss through the lossy-medium flux law.
+"""Bulk absorbing media and fibres: loss through the lossy-medium flux law.
 
 A medium's loss may be written several ways; :func:`absorption_coefficient_per_m` turns every
 one of them into the intensity attenuation coefficient α, and

@@ -1,6 +1,7 @@
 """The one registry of segment kinds: kind name -> spec model (which evaluates itself).
 
-The loader, the CLI, the JSON schema and the docs all read this table.
+The loader validates every chain item against this table (and names its kinds in the hint for
+an unknown kind); nothing else keeps a list of kinds.
 """
 
 from linkbudget.segments.coating import Coating
