@@ -12,6 +12,7 @@ from typing import Annotated
 import typer
 
 from linkbudget import __version__
+from linkbudget.messages import format_hint
 
 EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
 
@@ -53,7 +54,7 @@ def _margin_override(text):
     try:
         margin_db = parse_quantity(text, "ratio")
     except UnitError as error:
-        _fail_input(f"--min-margin: {error}" + (f"\n  hint: {error.hint}" if error.hint else ""))
+        _fail_input(f"--min-margin: {error}{format_hint(error.hint)}")
     if margin_db < 0:
         _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
     return margin_db
@@ -149,6 +150,7 @@ def check(
     """The CI gate: one line per link, exit 0 only if every link closes."""
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
+    from linkbudget.report.summary import check_line, check_summary
 
     required = _margin_override(min_margin)
     closes = fails = broken = 0
@@ -160,18 +162,10 @@ def check(
             typer.echo(f"ERROR  {path}: input error", err=False)
             typer.echo(str(error), err=True)
             continue
-        worst = float(result.margin_db["worst"].min())
-        word = "PASS " if result.closes else "FAIL "
-        reasons = []
-        if not result.margin_ok:
-            reasons.append("margin short")
-        if not result.overload_ok:
-            reasons.append("overload exceeded")
-        typer.echo(f"{word}  {path}: worst-case margin {worst:+.2f} dB, required "
-                   f"{result.required_margin_db:.2f} dB" + (f" ({', '.join(reasons)})" if reasons else ""))
+        typer.echo(check_line(result, path))
         closes += result.closes
         fails += not result.closes
-    typer.echo(f"{len(links)} link(s): {closes} close, {fails} do not close, {broken} with input errors")
+    typer.echo(check_summary(len(links), closes, fails, broken))
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 
 
@@ -207,7 +201,7 @@ def materials(
         wavelength_m = np.array([parse_quantity(text, "length") for text in wavelength])
         Console().print(constants_table(material, wavelength_m))
     except UnitError as error:
-        _fail_input(f"--wavelength: {error}" + (f"\n  hint: {error.hint}" if error.hint else ""))
+        _fail_input(f"--wavelength: {error}{format_hint(error.hint)}")
     except (MaterialError, MaterialRangeError) as error:
         _fail_input(f"{name}: {error}")
 

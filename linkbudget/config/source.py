@@ -9,6 +9,8 @@ from dataclasses import dataclass, field
 
 import yaml
 
+from linkbudget.messages import format_hint
+
 #: Bound on the number of nodes a document may expand to (aliases included), against
 #: "billion laughs" documents whose aliases multiply a small text into a huge structure.
 MAX_NODES = 100_000
@@ -62,7 +64,7 @@ class Problem:
     def render(self):
         where = self.file if self.mark is None else f"{self.file}:{self.mark.line}:{self.mark.column}"
         text = f"{where}: {format_key_path(self.path)}: {self.message}"
-        return text if self.hint is None else f"{text}\n  hint: {self.hint}"
+        return text + format_hint(self.hint)
 
 
 @dataclass

@@ -23,6 +23,7 @@ References
 
 import numpy as np
 
+from linkbudget.physics.checks import positive
 from linkbudget.physics.decibel import DB_PER_NEPER
 
 #: ln(1/0.02) rounded as published in [1]: the 2 % contrast threshold defining visibility.
@@ -31,16 +32,11 @@ _REFERENCE_WAVELENGTH_M = 550e-9
 
 
 def _visibility_km(visibility_m):
-    visibility_m = np.asarray(visibility_m, dtype=float)
-    if np.any(np.isnan(visibility_m)) or np.any(visibility_m <= 0):
-        raise ValueError("visibility must be > 0")
-    return visibility_m / 1e3
+    return positive(visibility_m, "visibility") / 1e3
 
 
 def _attenuation_db_per_km(visibility_km, wavelength_m, exponent):
-    wavelength_m = np.asarray(wavelength_m, dtype=float)
-    if np.any(np.isnan(wavelength_m)) or np.any(wavelength_m <= 0):
-        raise ValueError("wavelength must be > 0")
+    wavelength_m = positive(wavelength_m, "wavelength")
     # σ = (3.91/V)(λ/550 nm)^−q in 1/km [1], converted to dB/km
     extinction_per_km = _VISIBILITY_CONSTANT / visibility_km * (wavelength_m / _REFERENCE_WAVELENGTH_M) ** -exponent
     return DB_PER_NEPER * extinction_per_km

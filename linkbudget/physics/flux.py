@@ -21,16 +21,12 @@ References
 
 import numpy as np
 
+from linkbudget.physics.checks import non_negative
 from linkbudget.physics.decibel import DB_PER_NEPER
 
 
 def _passive(values, name):
-    array = np.asarray(values, dtype=float)
-    if np.any(np.isnan(array)):
-        raise ValueError(f"{name} is NaN")
-    if np.any(array < 0):
-        raise ValueError(f"{name} must be >= 0 in a passive medium, got {array.min():g}")
-    return array
+    return non_negative(values, f"{name} of a passive medium")
 
 
 def absorption_coefficient_from_kappa(kappa, wavelength_m):

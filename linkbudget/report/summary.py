@@ -82,3 +82,18 @@ def row_note(row, index):
     if detail.get("port") is not None:
         notes.append(f"port {detail['port']}")
     return "; ".join(notes)
+
+
+def check_line(result, path):
+    """The CI gate's line for one link: PASS or FAIL, its worst-case margin and what fails."""
+    reasons = [reason for ok, reason in ((result.margin_ok, "margin short"),
+                                          (result.overload_ok, "overload exceeded")) if not ok]
+    word = "PASS " if result.closes else "FAIL "
+    worst = float(result.margin_db["worst"].min())
+    line = f"{word}  {path}: worst-case margin {worst:+.2f} dB, required {result.required_margin_db:.2f} dB"
+    return line + (f" ({', '.join(reasons)})" if reasons else "")
+
+
+def check_summary(count, closes, fails, broken):
+    """The CI gate's last line."""
+    return f"{count} link(s): {closes} close, {fails} do not close, {broken} with input errors"

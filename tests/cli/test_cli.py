@@ -309,3 +309,12 @@ def test_console_script_runs_an_example(tmp_path):
     assert completed.returncode == (0 if closes else 1), completed.stderr
     assert ("CLOSES" if closes else "DOES NOT CLOSE") in completed.stdout
     assert "Laser safety" in completed.stdout
+
+
+def test_cli_import_leaves_heavy_modules_for_the_commands():
+    # DESIGN.md: the CLI starts fast, heavy modules are imported only by the commands that need
+    # them (measured as a ratio in benchmarks/startup.py; this guards the import graph itself).
+    code = ("import sys, linkbudget.cli; "
+            "print(','.join(m for m in ('numpy', 'scipy', 'pydantic', 'yaml') if m in sys.modules))")
+    loaded = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
+    assert loaded == ""
