@@ -8,7 +8,7 @@ them; a segment without a medium is transparent to that logic.
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr
+from pydantic import PrivateAttr, model_validator
 
 from linkbudget.config.fields import CASES, ComplexIndex, InputProblem, quantity
 from linkbudget.materials.dispersion import MaterialRangeError
@@ -67,14 +67,15 @@ class OpticalSegment(SegmentSpec):
     polarization: Polarization | None = None
     _index: np.ndarray | None = PrivateAttr(default=None)
 
-    def resolve(self, wavelength_m, base_dir):
-        problem = None
+    @model_validator(mode="after")
+    def _one_medium(self):
         if self.index is not None and self.material is not None:
-            problem = InputProblem(("material",), "give index or material, not both")
+            raise InputProblem(("material",), "give index or material, not both")
         if self.angle is not None and self.angle > MAX_ANGLE_RAD:
-            problem = InputProblem(("angle",), "angle of incidence must be below 89 deg")
-        if problem:
-            raise problem
+            raise InputProblem(("angle",), "angle of incidence must be below 89 deg")
+        return self
+
+    def resolve(self, wavelength_m, base_dir):
         if self.index is not None or self.material is not None:
             self._index = resolve_index(self.index, self.material, wavelength_m, base_dir)
         return self
