@@ -23,10 +23,9 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
-import linkbudget
 from linkbudget.materials.library import load_material
 from linkbudget.physics.fiber import marcuse_mode_field_radius_m, v_number
-from tests.segments.linktext import link_text, only_problem
+from tests.segments.linktext import evaluate, only_problem, row
 
 WL = 1550e-9
 W = 5.2e-6  # mode-field radius of the REFERENCES.md worked values
@@ -35,15 +34,6 @@ DB = 10 * np.log10(np.e)  # dB per neper of power: loss = DB·(−ln T)
 WORKED = 1e-3
 # Both sides evaluate the same closed form in double precision.
 EXACT = 1e-12
-
-
-def evaluate(chain, axis="wavelength: 1550 nm"):
-    return linkbudget.evaluate(linkbudget.load(link_text(chain, axis)))
-
-
-def row(result, name):
-    (found,) = [candidate for candidate in result.rows if candidate.name == name]
-    return found
 
 
 def loss_db(transmitted):

@@ -23,7 +23,7 @@ from numpy.testing import assert_allclose
 import linkbudget
 from linkbudget.materials.library import load_material
 from linkbudget.physics.thinfilm import incoherent_slab
-from tests.segments.linktext import link_text, only_problem
+from tests.segments.linktext import evaluate, link_text, only_problem, row
 
 # Both sides compute the same closed-form physics in double precision; 1e-9 leaves room for the
 # different order of operations (and is the brief's agreement figure), far below any budget digit.
@@ -31,15 +31,6 @@ TIGHT = 1e-9
 
 CHANNELS_M = np.array([1310e-9, 1450e-9, 1550e-9, 1625e-9])
 CHANNELS = "channels: [1310 nm, 1450 nm, 1550 nm, 1625 nm]"
-
-
-def evaluate(chain, axis="wavelength: 1550 nm"):
-    return linkbudget.evaluate(linkbudget.load(link_text(chain, axis)))
-
-
-def row(result, name):
-    (found,) = [candidate for candidate in result.rows if candidate.name == name]
-    return found
 
 
 def transmittance(loss_db):

@@ -242,7 +242,8 @@ def test_evaluate_spread_in_other_units_same_budget(lengths_m, attenuations, pow
                   for key, value in zip(("min", "typ", "max"), sorted(lengths_m), strict=True)}
         attenuation = {key: q(value / ATTENUATION_UNITS[attenuation_unit], attenuation_unit)
                        for key, value in zip(("min", "typ", "max"), sorted(attenuations), strict=True)}
-        power = {key: power_text(value, power_unit) for key, value in zip(("min", "typ", "max"), sorted(powers_w), strict=True)}
+        power = {key: power_text(value, power_unit)
+                 for key, value in zip(("min", "typ", "max"), sorted(powers_w), strict=True)}
         chain = [{"name": "trunk", "kind": "fiber", "length": spread, "attenuation": attenuation}]
         return evaluate(chain, power=power)
 

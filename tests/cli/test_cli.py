@@ -271,7 +271,8 @@ def test_min_margin_override_fails_a_closing_link(cli, links):
 
 
 def test_min_margin_override_passes_a_failing_link(cli, write_link, minimal_link):
-    demanding = write_link(minimal_link.replace("sensitivity: -30 dBm", "sensitivity: -30 dBm\n  required_margin: 40 dB"))
+    demanding = write_link(
+        minimal_link.replace("sensitivity: -30 dBm", "sensitivity: -30 dBm\n  required_margin: 40 dB"))
     assert cli("run", demanding).exit_code == 1
     assert cli("run", demanding, "--min-margin", "3dB").exit_code == 0
     result = cli("run", demanding, "--min-margin", "3dB", "-f", "json")

@@ -25,3 +25,14 @@ def only_problem(chain):
         linkbudget.load(link_text(chain))
     (problem,) = error.value.problems
     return format_key_path(problem.path), f"{problem.message} {problem.hint or ''}"
+
+
+def evaluate(chain, axis="wavelength: 1550 nm"):
+    """The evaluated link around ``chain``."""
+    return linkbudget.evaluate(linkbudget.load(link_text(chain, axis)))
+
+
+def row(result, name):
+    """The one budget row of ``result`` called ``name``."""
+    (found,) = [candidate for candidate in result.rows if candidate.name == name]
+    return found
