@@ -7,7 +7,7 @@ mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``)
 """
 
 import math
-import re
+import sys
 from functools import cache
 from typing import Annotated, Any, ClassVar
 
@@ -29,7 +29,8 @@ SIGMA_SPAN = 3.0
 CASES = ("typ", "worst", "best")
 
 
-_PLAIN_NUMBER = re.compile(r"^\s*[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?\s*$")
+#: Largest count accepted: every whole number up to it is exactly a float, as the budget uses it.
+MAX_COUNT = 2**53
 
 
 class InputProblem(ValueError):
@@ -82,11 +83,10 @@ def quantity(dimension, *, minimum=None, strictly_positive=False):
 def number(*, minimum=None, strictly_positive=False):
     """An annotated float field for a dimensionless number (an index, a ratio of powers)."""
     def parse(value):
-        # YAML 1.1 reads 1e-5 (no dot) as text, so plain numeric text is accepted too
-        if isinstance(value, str) and _PLAIN_NUMBER.match(value):
-            value = float(value)
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             raise ValueError(f"expected a number, got {value!r}")
+        if isinstance(value, int) and abs(value) > sys.float_info.max:
+            raise ValueError(f"a number beyond ±{sys.float_info.max:.3g} is out of range")
         if not math.isfinite(value):
             raise ValueError(f"{value!r} is not a finite number")
         return _bounded(float(value), minimum, strictly_positive)
@@ -101,6 +101,8 @@ def integer(*, minimum=None):
             raise ValueError(f"expected a whole number, got {value!r}")
         if minimum is not None and value < minimum:
             raise ValueError(f"must be >= {minimum}")
+        if value > MAX_COUNT:
+            raise ValueError(f"must be <= 2**53 = {MAX_COUNT}")
         return value
 
     return Annotated[int, BeforeValidator(parse)]
@@ -112,7 +114,7 @@ def complex_index(value):
         raise ValueError(f"expected an index such as 1.5 or 1.447+3.0e-8j, got {value!r}")
     try:
         index = complex(value.replace(" ", "") if isinstance(value, str) else value)
-    except ValueError:
+    except (ValueError, OverflowError):
         raise ValueError(f"cannot read {value!r} as a complex index n+kj (e.g. 1.447+3.0e-8j)") from None
     if not (math.isfinite(index.real) and math.isfinite(index.imag)):
         raise ValueError(f"index {value!r} is not finite")

@@ -15,9 +15,7 @@ from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
 from linkbudget.segments.chain import chain_problems
-
-#: Largest link file read [bytes]; a link is a few kB of text.
-MAX_FILE_BYTES = 5_000_000
+from linkbudget.yamlread import ReadError, read_text
 
 
 @dataclass(frozen=True)
@@ -195,9 +193,9 @@ def load_link(path):
     """Read and validate a link file; see :func:`parse_link`."""
     path = Path(path)
     try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            raise ConfigError([Problem(str(path), None, (), f"file is larger than {MAX_FILE_BYTES} bytes")])
-        text = path.read_text(encoding="utf-8")
+        text = read_text(path)
+    except ReadError as error:
+        raise ConfigError([Problem(str(path), None, (), str(error), error.hint)]) from None
     except FileNotFoundError:
         raise ConfigError([Problem(str(path), None, (), "file not found")]) from None
     except IsADirectoryError:

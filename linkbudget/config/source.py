@@ -1,28 +1,42 @@
 """Safe YAML reading that keeps the line and column of every node.
 
-The text is composed into a node graph with PyYAML's safe loader (no object construction),
-then turned into plain dicts, lists and scalars while a :class:`Positions` table records where
-each key path came from, so every later error can name ``FILE:LINE:COL: key.path``.
+The text is composed into a node graph by :func:`linkbudget.yamlread.compose` (no object
+construction; size, node and depth bounds checked while reading), then turned into plain dicts,
+lists and scalars while a :class:`Positions` table records where each key path came from, so
+every later error can name ``FILE:LINE:COL: key.path``.
 """
 
+import math
 from dataclasses import dataclass, field
 
 import yaml
 
 from linkbudget.messages import format_hint
+from linkbudget.text import escaped
+from linkbudget.yamlread import IMPLICIT_TYPES, ReadError, compose
 
-#: Bound on the number of nodes a document may expand to (aliases included), against
-#: "billion laughs" documents whose aliases multiply a small text into a huge structure.
-MAX_NODES = 100_000
+_CORE = "tag:yaml.org,2002:"
 
-#: Deepest nesting of lists and mappings a document may have (a link needs about six).
-MAX_DEPTH = 64
 
-#: The only node tags a link file may use: plain scalars, lists and mappings.
-_PLAIN_TAGS = {
-    f"tag:yaml.org,2002:{name}" for name in ("str", "int", "float", "bool", "null", "seq", "map")
+def _float(text):
+    """``.inf``, ``-.inf`` and ``.nan`` as YAML writes them; any other float as Python reads it."""
+    special = {".inf": math.inf, ".nan": math.nan}
+    word = text.lstrip("+-").lower()
+    return (-1.0 if text.startswith("-") else 1.0) * special[word] if word in special else float(text)
+
+
+#: The scalar tags a link file may use: (pattern the text must match, its value). The same rules
+#: apply whether the tag is implicit (resolved from the text) or written (``!!int 3``); an
+#: integer may also be written where a float is.
+_SCALARS = {
+    _CORE + "str": (None, str),
+    _CORE + "null": (IMPLICIT_TYPES["null"], lambda text: None),
+    _CORE + "bool": (IMPLICIT_TYPES["bool"], lambda text: text.lower() == "true"),
+    _CORE + "int": (IMPLICIT_TYPES["int"], int),
+    _CORE + "float": (IMPLICIT_TYPES["float"], _float),
 }
-
+_COLLECTIONS = {"mapping": _CORE + "map", "list": _CORE + "seq"}
+_MERGE = _CORE + "merge"
 
 @dataclass(frozen=True)
 class Mark:
@@ -63,8 +77,8 @@ class Problem:
 
     def render(self):
         where = self.file if self.mark is None else f"{self.file}:{self.mark.line}:{self.mark.column}"
-        text = f"{where}: {format_key_path(self.path)}: {self.message}"
-        return text + format_hint(self.hint)
+        text = f"{escaped(where)}: {escaped(format_key_path(self.path))}: {escaped(self.message)}"
+        return text + format_hint(None if self.hint is None else escaped(self.hint))
 
 
 @dataclass
@@ -97,66 +111,83 @@ class _Builder:
 
     def __init__(self, positions):
         self.positions = positions
-        self.constructor = yaml.SafeLoader("")
-        self.count = 0
 
     def fail(self, node, path, message, hint=None):
         problem = Problem(self.positions.file, _mark(node), tuple(path), message, hint)
         raise ConfigError([problem])
 
     def build(self, node, path):
-        self.count += 1
-        if self.count > MAX_NODES:
-            self.fail(node, path, f"document expands to more than {MAX_NODES} nodes",
-                      "a YAML alias/anchor chain multiplies the document; write the values out")
         self.positions.marks.setdefault(tuple(path), _mark(node))
-        if node.tag not in _PLAIN_TAGS:
-            self.fail(node, path, f"unsupported YAML tag {node.tag!r}",
-                      "link files hold plain text, numbers, lists and mappings only")
         if isinstance(node, yaml.MappingNode):
-            return self.build_mapping(node, path)
+            self.check_tag(node, path, _COLLECTIONS["mapping"])
+            return {key: self.build(value_node, (*path, key))
+                    for key, (_, value_node) in self.pairs(node, path).items()}
         if isinstance(node, yaml.SequenceNode):
+            self.check_tag(node, path, _COLLECTIONS["list"])
             return [self.build(item, (*path, index)) for index, item in enumerate(node.value)]
         return self.build_scalar(node, path)
 
-    def build_mapping(self, node, path):
-        try:
-            self.constructor.flatten_mapping(node)
-        except yaml.YAMLError as error:
-            self.fail(node, path, f"bad merge key: {error.problem}")
-        result = {}
+    def check_tag(self, node, path, expected):
+        if node.tag == expected:
+            return
+        if node.tag in _SCALARS or node.tag in _COLLECTIONS.values():
+            self.fail(node, path, f"YAML tag {node.tag!r} does not fit this {node.id}")
+        self.fail(node, path, f"unsupported YAML tag {node.tag!r}",
+                  "link files hold plain text, numbers, lists and mappings only")
+
+    def pairs(self, node, path):
+        """``key -> (key node, value node)`` of a mapping, merge keys applied (YAML 1.1).
+
+        The mappings a merge key ``<<`` names come first, an earlier one winning over a later
+        one; keys written in the mapping itself override them. Only a key written twice in the
+        same mapping is a duplicate.
+        """
+        merged, written = {}, {}
         for key_node, value_node in node.value:
-            key = self.build(key_node, path) if isinstance(key_node, yaml.ScalarNode) else None
+            if key_node.tag == _MERGE:
+                if _MERGE in written:
+                    self.fail(key_node, path, "duplicate merge key '<<'", "merge several mappings as <<: [*a, *b]")
+                written[_MERGE] = None
+                for source in self.merge_sources(value_node, path):
+                    for key, pair in self.pairs(source, path).items():
+                        merged.setdefault(key, pair)
+                continue
+            key = self.build_scalar(key_node, path) if isinstance(key_node, yaml.ScalarNode) else None
             if not isinstance(key, str):
                 self.fail(key_node, path, "mapping keys must be plain names")
-            if key in result:
+            if key in written:
                 self.fail(key_node, (*path, key), "duplicate key")
+            written[key] = (key_node, value_node)
+        written.pop(_MERGE, None)
+        pairs = {**merged, **written}
+        for key, (key_node, value_node) in pairs.items():
             self.positions.marks[(*path, key)] = _mark(value_node)
             self.positions.key_marks[(*path, key)] = _mark(key_node)
-            result[key] = self.build(value_node, (*path, key))
-        return result
+        return pairs
+
+    def merge_sources(self, node, path):
+        """The mappings a merge key's value names: one mapping, or a list of mappings."""
+        sources = node.value if isinstance(node, yaml.SequenceNode) else [node]
+        for source in sources:
+            if not isinstance(source, yaml.MappingNode):
+                self.fail(source, path, "a merge key '<<' takes a mapping or a list of mappings",
+                          "write <<: *name, with the anchor &name on a mapping")
+        return sources
 
     def build_scalar(self, node, path):
-        try:
-            return self.constructor.construct_object(node, deep=True)
-        except (yaml.YAMLError, ValueError) as error:
-            self.fail(node, path, f"cannot read value: {error}")
-
-
-def _check_depth(text, file):
-    """Refuse documents nested deeper than :data:`MAX_DEPTH`, at the first too-deep node."""
-    depth = 0
-    for event in yaml.parse(text, Loader=yaml.SafeLoader):
-        if isinstance(event, (yaml.MappingStartEvent, yaml.SequenceStartEvent)):
-            depth += 1
-            if depth > MAX_DEPTH:
-                raise ConfigError([Problem(file, _mark(event), (), f"nested more than {MAX_DEPTH} levels deep")])
-        elif isinstance(event, (yaml.MappingEndEvent, yaml.SequenceEndEvent)):
-            depth -= 1
+        if node.tag not in _SCALARS:
+            self.check_tag(node, path, None)
+        pattern, value = _SCALARS[node.tag]
+        if pattern is not None and not pattern.fullmatch(node.value):
+            self.fail(node, path, f"{node.value!r} cannot be read as {node.tag.replace(_CORE, '!!')}")
+        return value(node.value)
 
 
 def load_yaml(text, file="<string>"):
     """Parse YAML text into plain data and the positions of its key paths.
+
+    The reading bounds of :mod:`linkbudget.yamlread` apply (size of each text, nodes with
+    aliases expanded, nesting depth, no recursive alias), checked while the text is read.
 
     Parameters
     ----------
@@ -173,25 +204,14 @@ def load_yaml(text, file="<string>"):
     ------
     ConfigError
         On a YAML syntax error (tabs included), an unsupported tag, a duplicate key, more than
-        one document, or a document that expands beyond :data:`MAX_NODES` nodes.
+        one document, or a document beyond a reading bound.
     """
     positions = Positions(file)
     try:
-        _check_depth(text, file)
-        node = yaml.compose(text, Loader=yaml.SafeLoader)
-    except yaml.MarkedYAMLError as error:
-        mark = error.problem_mark or error.context_mark
-        where = None if mark is None else Mark(mark.line + 1, mark.column + 1)
-        message = f"YAML syntax error: {error.problem or error.context}"
-        hint = "indent with spaces, not tabs" if "\t" in text else None
-        raise ConfigError([Problem(file, where, (), message, hint)]) from None
-    except yaml.reader.ReaderError as error:
-        before = text[: error.position]
-        where = Mark(before.count("\n") + 1, error.position - (before.rfind("\n") + 1) + 1)
-        message = f"character {error.character!r} is not allowed in YAML text"
-        raise ConfigError([Problem(file, where, (), message)]) from None
-    except yaml.YAMLError as error:
-        raise ConfigError([Problem(file, None, (), f"YAML error: {error}")]) from None
+        node = compose(text)
+    except ReadError as error:
+        where = None if error.line is None else Mark(error.line, error.column)
+        raise ConfigError([Problem(file, where, (), str(error), error.hint)]) from None
     if node is None:
         raise ConfigError([Problem(file, Mark(1, 1), (), "the file is empty")])
     return _Builder(positions).build(node, ()), positions

@@ -117,8 +117,9 @@ CASES = [
     Case("python-object-tag",
          edit("title: Minimal test link", "title: !!python/object/apply:os.system ['touch {TMP}/marker']"),
          "title: |!!python", "title", ("unsupported YAML tag", "python/object/apply:os.system")),
-    Case("timestamp-tag", edit("title: Minimal test link", "title: 2024-05-01"),
-         "title: |2024", "title", ("unsupported YAML tag", "timestamp")),
+    # a date is text (YAML 1.2 core schema); only a written !!timestamp tag asks for a date
+    Case("timestamp-tag", edit("title: Minimal test link", "title: !!timestamp 2024-05-01"),
+         "title: |!!timestamp", "title", ("unsupported YAML tag", "timestamp")),
     Case("number-beyond-float", edit("length: 2 km", "length: 1e400 m"),
          "length: |1e400 m", "chain[0].length", ("not a finite number",)),
     # 1e306 is a finite float, but 1e306 km = 1e309 m is not.
@@ -170,6 +171,48 @@ CASES = [
     Case("top-level-list", "- title: one\n- title: two\n", (1, 1), "(top level)", ("a link file is a mapping",)),
     # Deeper than PyYAML's recursive composer can go within Python's recursion limit.
     Case("deep-nesting", DEEP_NESTING, ANYWHERE, None, ("nest",)),
+    # Written tags follow the same rules as plain scalars (issue 7 item 16).
+    Case("bool-tag-on-yes", edit("loss: 0.5 dB", "loss: !!bool yes"),
+         "loss: |!!bool", "chain[1].loss", ("'yes' cannot be read as !!bool",)),
+    Case("int-tag-on-text", edit("loss: 0.5 dB", "loss: !!int ''"),
+         "loss: |!!int", "chain[1].loss", ("cannot be read as !!int",)),
+    Case("float-tag-on-text", edit("loss: 0.5 dB", "loss: !!float abc"),
+         "loss: |!!float", "chain[1].loss", ("cannot be read as !!float",)),
+    Case("unknown-tag-on-kind", edit("kind: connector", "kind: !part connector"),
+         "kind: |!part", "chain[1].kind", ("unsupported YAML tag '!part'",)),
+    Case("unknown-tag-on-material", append(WINDOW + "    material: !glass fused-silica\n"),
+         "material: |!glass", "chain[2].material", ("unsupported YAML tag '!glass'",)),
+    Case("map-tag-on-text", edit("loss: 0.5 dB", "loss: !!map 0.5 dB"),
+         "loss: |!!map", "chain[1].loss", ("does not fit this scalar",)),
+    # A recursive alias (issue 7 item 17).
+    Case("recursive-alias", edit("chain:\n", "chain: &a\n  - *a\n"),
+         "  - |*a", "(top level)", ("alias *a is inside the list or mapping it names",)),
+    # Integers beyond a float (issue 7 item 18).
+    Case("count-beyond-float", append("  - kind: splice\n    loss: 0.1 dB\n    count: " + "9" * 400 + "\n"),
+         "count: |999", "chain[2].count", ("must be <= 2**53",)),
+    Case("number-beyond-float-digits", append(WINDOW + "    kappa: " + "9" * 400 + "\n"),
+         "kappa: |999", "chain[2].kappa", ("out of range",)),
+    Case("index-beyond-float-digits", append(WINDOW + "    index: " + "9" * 400 + "\n"),
+         "index: |999", "chain[2].index", ("complex index",)),
+    # YAML 1.1 implicit types are text where a count is expected (issue 16 item 5).
+    *[Case(f"count-{label}", append(f"  - kind: splice\n    loss: 0.1 dB\n    count: {text}\n"),
+           f"count: |{text}", "chain[2].count", ("expected a whole number", repr(text)))
+      for label, text in (("base-60", "1:30"), ("hex", "0x10"), ("octal", "0o17"), ("leading-zero", "017"),
+                          ("underscore", "1_000"), ("yes", "yes"))],
+    # Long text is refused while reading, with the limit (issue 7 item 19).
+    Case("name-too-long", edit("name: panel", "name: " + "x" * 1001),
+         "name: |xxx", "(top level)", ("text longer than 1000 characters",)),
+    # A key written twice is a duplicate even beside a merge key (issue 7 item 9).
+    Case("duplicate-key-beside-merge", edit("  - name: panel\n", "  - &p\n    name: panel\n")
+         + "  - <<: *p\n    name: panel 2\n    name: panel 3\n",
+         "|name: panel 3", "chain[2].name", ("duplicate key",)),
+    Case("merge-of-a-scalar", append("  - <<: 3\n    kind: element\n    loss: 1 dB\n"),
+         "<<: |3", "chain[2]", ("merge key '<<' takes a mapping",)),
+    # User text in a message is escaped: the message stays on its line (issue 7 item 21).
+    Case("multi-line-duplicate-name", edit("name: trunk", 'name: "pa\\nPASS nel"').replace(
+        "name: panel", 'name: "pa\\nPASS nel"'),
+         '  - name: |"pa\\nPASS nel"\n    kind: connector', "chain[1].name",
+         ("duplicate segment name 'pa\\nPASS nel'",)),
 ]
 
 
