@@ -16,7 +16,7 @@ __version__ = "0.1.0"
 __all__ = ["ConfigError", "LinkResult", "__version__", "evaluate", "load"]
 
 
-def load(source, *, base_dir=None):
+def load(source, *, base_dir=None, allow_paths=()):
     """Load a link from a file path or from YAML text.
 
     Parameters
@@ -24,7 +24,11 @@ def load(source, *, base_dir=None):
     source : str or os.PathLike
         A path to a link file, or the YAML text itself (any string holding a newline).
     base_dir : path-like, optional
-        Folder for files the link refers to when ``source`` is text.
+        Folder for files the link refers to when ``source`` is text (default: the current folder).
+    allow_paths : iterable of path-like
+        Folders outside the project that files the link refers to (material files) may lie in;
+        without them every such file must lie inside the link's project: the nearest folder
+        above the link holding ``.git`` or ``linkbudget.toml``, else the link's own folder.
 
     Returns
     -------
@@ -38,8 +42,8 @@ def load(source, *, base_dir=None):
     from linkbudget.config import load_link, parse_link
 
     if isinstance(source, str) and "\n" in source:
-        return parse_link(source, "<string>", base_dir)
-    return load_link(source)
+        return parse_link(source, "<string>", base_dir, allow_paths)
+    return load_link(source, allow_paths)
 
 
 def evaluate(link, *, required_margin_db=None):

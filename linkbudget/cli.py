@@ -32,16 +32,22 @@ class Format(str, Enum):
     csv = "csv"
 
 
+#: The option of every command that loads links: a folder outside the project a link may read from.
+AllowPath = Annotated[list[Path] | None, typer.Option(
+    "--allow-path", metavar="DIR",
+    help="Let the links read files (materials) in this folder outside their project; repeatable.")]
+
+
 def _fail_input(message):
     typer.echo(message, err=True)
     raise typer.Exit(EXIT_INPUT)
 
 
-def _load(path):
+def _load(path, allow_paths):
     from linkbudget.config import ConfigError, load_link
 
     try:
-        return load_link(path)
+        return load_link(path, allow_paths)
     except ConfigError as error:
         _fail_input(str(error))
 
@@ -110,13 +116,15 @@ def run(
     min_margin: Annotated[
         str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
+    allow_path: AllowPath = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict."""
     from linkbudget.engine import evaluate
 
     required = _margin_override(min_margin)
-    result = evaluate(_load(link), required_margin_db=required)
-    _emit(result, output_format, output, force, protected=[link])
+    loaded = _load(link, allow_path or ())
+    result = evaluate(loaded, required_margin_db=required)
+    _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
 
@@ -146,6 +154,7 @@ def check(
     min_margin: Annotated[str | None, typer.Option(
         "--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
+    allow_path: AllowPath = None,
 ):
     """The CI gate: one line per link, exit 0 only if every link closes."""
     from linkbudget.config import ConfigError, load_link
@@ -156,7 +165,7 @@ def check(
     closes = fails = broken = 0
     for path in links:
         try:
-            result = evaluate(load_link(path), required_margin_db=required)
+            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
         except ConfigError as error:
             broken += 1
             typer.echo(f"ERROR  {path}: input error", err=False)
@@ -184,6 +193,7 @@ def materials(
 
     from linkbudget.materials.dispersion import MaterialRangeError
     from linkbudget.materials.library import MaterialError, catalog_names, load_material
+    from linkbudget.paths import PathRefused
     from linkbudget.report.materials import catalog_table, constants_table
     from linkbudget.units import UnitError, parse_quantity
 
@@ -202,7 +212,7 @@ def materials(
         Console().print(constants_table(material, wavelength_m))
     except UnitError as error:
         _fail_input(f"--wavelength: {error}{format_hint(error.hint)}")
-    except (MaterialError, MaterialRangeError) as error:
+    except (MaterialError, MaterialRangeError, PathRefused) as error:
         _fail_input(f"{name}: {error}")
 
 

@@ -63,9 +63,10 @@ IMPLICIT_TYPES = {
 class ReadError(Exception):
     """A file that cannot be read or composed: a message, where (1-based line, column) and a hint."""
 
-    def __init__(self, message, line=None, column=None, hint=None):
+    def __init__(self, message, line=None, column=None, hint=None, *, quotes_input=False):
         super().__init__(message)
         self.line, self.column, self.hint = line, column, hint
+        self.quotes_input = quotes_input  # the message repeats text of the file (a name, a character)
 
 
 class _Resolver(BaseResolver):
@@ -92,7 +93,11 @@ def read_text(path, max_bytes=MAX_FILE_BYTES):
         As :func:`open` and :meth:`bytes.decode` raise them.
     """
     with open(path, "rb") as stream:
-        data = stream.read(max_bytes + 1)
+        return bounded_text(stream.read(max_bytes + 1), max_bytes)
+
+
+def bounded_text(data, max_bytes=MAX_FILE_BYTES):
+    """``data`` (read as at most ``max_bytes + 1`` bytes) decoded as UTF-8, refused if over ``max_bytes``."""
     if len(data) > max_bytes:
         raise ReadError(f"file is larger than {max_bytes} bytes",
                         hint="link and material files are text of a few kB")
@@ -126,7 +131,7 @@ class _BoundedComposer(Composer):
         event = self.peek_event()
         if isinstance(event, AliasEvent):
             if event.anchor in self.open:
-                raise ReadError(f"alias *{event.anchor} is inside the list or mapping it names",
+                raise ReadError("an alias is inside the list or mapping it names",
                                 *_place(event.start_mark), "a recursive structure cannot be a value")
             nodes, levels = self.extent.get(event.anchor, (0, 0))
             self.grow(nodes, levels, event)
@@ -175,7 +180,8 @@ def compose(text):
         mark = error.problem_mark or error.context_mark
         where = () if mark is None else _place(mark)
         hint = "indent with spaces, not tabs" if "\t" in text else None
-        raise ReadError(f"YAML syntax error: {error.problem or error.context}", *where, hint) from None
+        raise ReadError(f"YAML syntax error: {error.problem or error.context}", *where, hint,
+                        quotes_input=True) from None
     except yaml.reader.ReaderError as error:
         # libyaml counts bytes of UTF-8, the pure-Python reader characters
         if isinstance(loader, yaml.reader.Reader):
@@ -184,7 +190,8 @@ def compose(text):
             before = text.encode("utf-8")[: error.position].decode("utf-8", "replace")
         line, column = before.count("\n") + 1, len(before) - (before.rfind("\n") + 1) + 1
         bad = text[len(before): len(before) + 1]
-        raise ReadError(f"character {bad!r} is not allowed in YAML text", line, column) from None
+        raise ReadError(f"character {bad!r} is not allowed in YAML text", line, column,
+                        quotes_input=True) from None
     except UnicodeEncodeError as error:
         before = text[: error.start]
         line, column = before.count("\n") + 1, error.start - (before.rfind("\n") + 1) + 1

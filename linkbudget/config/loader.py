@@ -14,6 +14,7 @@ from pydantic import BaseModel, ValidationError
 from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
+from linkbudget.paths import LinkFiles
 from linkbudget.segments.chain import chain_problems
 from linkbudget.yamlread import ReadError, read_text
 
@@ -25,6 +26,8 @@ class Link:
     spec: LinkSpec
     segments: tuple
     file: str
+    #: Resolved paths of the files the link refers to that were read (its material files).
+    referenced_files: tuple = ()
 
 
 def _model_at(model, loc):
@@ -135,7 +138,7 @@ def _validate_segment(item, index, positions):
     return segment, []
 
 
-def parse_link(text, file="<string>", base_dir=None):
+def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
     """Validate link text and return a :class:`Link`.
 
     Parameters
@@ -146,6 +149,9 @@ def parse_link(text, file="<string>", base_dir=None):
         Name used in messages.
     base_dir : path-like, optional
         Folder for files the link refers to (own material files); default: the current folder.
+        Those files must lie inside the project holding it (see :mod:`linkbudget.paths`).
+    allow_paths : iterable of path-like
+        Further folders those files may lie in.
 
     Raises
     ------
@@ -164,6 +170,7 @@ def parse_link(text, file="<string>", base_dir=None):
     chain = data.get("chain")
     wavelength_m = None if spec is None else spec.wavelengths_m()
     segments, seen = [], {}
+    files = LinkFiles.for_link(base_dir, allow_paths)
     for index, item in enumerate(chain if isinstance(chain, list) else []):
         segment, found = _validate_segment(item, index, positions)
         problems += found
@@ -171,7 +178,7 @@ def parse_link(text, file="<string>", base_dir=None):
             continue
         if spec is not None:
             try:
-                segment = segment.resolve(wavelength_m, Path(base_dir or "."))
+                segment = segment.resolve(wavelength_m, files)
             except InputProblem as problem:
                 problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
                 continue
@@ -186,10 +193,10 @@ def parse_link(text, file="<string>", base_dir=None):
                     for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file)
+    return Link(spec, tuple(segments), file, tuple(files.read))
 
 
-def load_link(path):
+def load_link(path, allow_paths=()):
     """Read and validate a link file; see :func:`parse_link`."""
     path = Path(path)
     try:
@@ -206,4 +213,4 @@ def load_link(path):
         raise ConfigError([Problem(str(path), mark, (), f"not UTF-8 text ({error.reason})")]) from None
     except OSError as error:
         raise ConfigError([Problem(str(path), None, (), f"cannot read: {error.strerror}")]) from None
-    return parse_link(text, str(path), path.parent)
+    return parse_link(text, str(path), path.parent, allow_paths)

@@ -44,8 +44,10 @@ import yaml
 
 from linkbudget.materials import dispersion
 from linkbudget.materials.dispersion import require_in_range
+from linkbudget.paths import LinkFiles, read_regular_file
+from linkbudget.text import escaped
 from linkbudget.units import UNITS
-from linkbudget.yamlread import ReadError, compose, read_text
+from linkbudget.yamlread import MAX_FILE_BYTES, ReadError, bounded_text, compose
 
 _CATALOG = resources.files(__package__).joinpath("catalog")
 
@@ -55,6 +57,8 @@ _INVERSE_SQUARE_LENGTH_PER_M2 = {f"{unit}^-2": scale**-2 for unit, scale in _LEN
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
 _QUANTITY = re.compile(rf"\s*({_NUMBER})\s*(\S+)\s*")
 _NAME = re.compile(r"[a-z0-9]+(?:-[a-z0-9]+)*")
+#: An unknown key short and plain enough to be named in a message (the material keys are all so).
+_PLAIN_KEY = re.compile(r"[A-Za-z_][A-Za-z0-9_-]{0,19}")
 _TABLE_COLUMNS = (["wavelength", "n", "k"], ["wavelength", "n"])
 
 
@@ -108,35 +112,40 @@ def catalog_names():
     return list(_catalog_names())
 
 
-def load_material(name_or_path, *, base_dir=None):
+def load_material(name_or_path, *, base_dir=None, files=None):
     """A catalog material by name, or a user's material file by path.
 
     Parameters
     ----------
     name_or_path : str or os.PathLike
         A catalog name such as ``"fused-silica"``, or the path of a material file (anything
-        ending in ``.yaml``/``.yml`` or containing a ``/``).
+        ending in ``.yaml``/``.yml`` or containing a ``/`` or ``\\``).
     base_dir : str or os.PathLike, optional
-        Folder a relative path is taken from (that of the link file naming the material);
-        the current directory when omitted.
+        Folder a relative path is taken from; the current directory when omitted. The path may
+        lead anywhere: for a path the caller gives directly.
+    files : linkbudget.paths.LinkFiles, optional
+        For a path written in a link: where it starts from and the folders it must lie in (see
+        :mod:`linkbudget.paths`); replaces ``base_dir``.
 
     Raises
     ------
     MaterialError
-        Unknown name (with close matches), missing file or malformed content.
+        Unknown name (with close matches) or malformed content; the messages name the keys of
+        the material language but never quote a value of the file.
+    linkbudget.paths.PathRefused
+        A path outside ``files.roots``, a missing file, or one that is not a regular file.
     """
     text = str(name_or_path)
     if isinstance(name_or_path, os.PathLike) or "/" in text or "\\" in text or text.endswith((".yaml", ".yml")):
-        path = Path(base_dir or ".") / text
+        files = files or LinkFiles(Path(base_dir or "."), roots=None)
+        path = files.locate(text)
         try:
-            content = read_text(path)
+            content = bounded_text(read_regular_file(path, max_bytes=MAX_FILE_BYTES))
         except ReadError as error:
-            raise MaterialError(f"cannot read material file {path}: {error}") from None
-        except UnicodeDecodeError as error:
-            raise MaterialError(f"material file {path} is not UTF-8 text ({error.reason})") from None
-        except OSError as error:
-            raise MaterialError(f"cannot read material file {path}: {error.strerror or error}") from None
-        return _parse(content, str(path))
+            raise MaterialError(f"{escaped(text)}: not a material file ({error})") from None
+        except UnicodeDecodeError:
+            raise MaterialError(f"{escaped(text)}: not a material file (not UTF-8 text)") from None
+        return _parse(content, escaped(text))
     return _catalog_material(text)
 
 
@@ -154,13 +163,18 @@ def _parse(content, origin):
     try:
         node = compose(content)
         document = None if node is None else yaml.SafeLoader("").construct_document(node)
-    except ReadError as error:
-        at = f" line {error.line}, column {error.column}:" if error.line else ""
-        raise MaterialError(f"{origin}:{at} not valid YAML ({error})") from None
+    except ReadError as error:  # a message that quotes the file gives only the place
+        at = f" at line {error.line}, column {error.column}" if error.line else ""
+        why = "not valid YAML" if error.quotes_input else str(error)
+        raise MaterialError(f"{origin}: not a material file ({why}{at})") from None
     except (yaml.YAMLError, ValueError, LookupError) as error:  # a written tag that does not fit its text
-        raise MaterialError(f"{origin}: not valid YAML ({error})") from None
+        mark = getattr(error, "problem_mark", None)
+        at = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
+        raise MaterialError(f"{origin}: not a material file (not valid YAML{at})") from None
+    if not isinstance(document, dict):
+        raise MaterialError(f"{origin}: not a material file (expected a mapping of keys)")
     top = _check_keys(
-        _mapping(document, origin),
+        document,
         required={"name", "description", "source"},
         optional={"data_via", "valid_range", *_MODELS},
         where=origin,
@@ -171,7 +185,7 @@ def _parse(content, origin):
     (model,) = models
     name = _text(top["name"], f"{origin}: name")
     if not _NAME.fullmatch(name):
-        raise MaterialError(f"{origin}: name {name!r} must be lowercase words joined by hyphens")
+        raise MaterialError(f"{origin}: name: must be lowercase words joined by hyphens")
     evaluate, table_range_m = _MODELS[model](top[model], f"{origin}: {model}")
     if table_range_m is not None and "valid_range" in top:
         raise MaterialError(f"{origin}: valid_range: not allowed with a table, whose range is its first and last row")
@@ -226,13 +240,13 @@ def _table(block, where):
     unit_m = _unit(block["wavelength_unit"], f"{where}.wavelength_unit")
     columns = block["columns"]
     if columns not in _TABLE_COLUMNS:
-        raise MaterialError(f"{where}.columns: must be [wavelength, n, k] or [wavelength, n], got {columns!r}")
+        raise MaterialError(f"{where}.columns: must be [wavelength, n, k] or [wavelength, n]")
     rows = block["rows"]
     if not isinstance(rows, list) or len(rows) < 2:
         raise MaterialError(f"{where}.rows: need a list of at least two rows")
     for i, row in enumerate(rows):
         if not isinstance(row, list) or len(row) != len(columns):
-            raise MaterialError(f"{where}.rows[{i}]: need {len(columns)} numbers ({', '.join(columns)}), got {row!r}")
+            raise MaterialError(f"{where}.rows[{i}]: need a list of {len(columns)} numbers ({', '.join(columns)})")
         for j, value in enumerate(row):
             _number(value, f"{where}.rows[{i}][{j}]")
     values = np.array(rows, dtype=float)
@@ -272,11 +286,30 @@ def _check_keys(mapping, *, required, optional, where):
         if key not in allowed:
             close = difflib.get_close_matches(str(key), sorted(allowed), n=1)
             hint = f" (did you mean {close[0]!r}?)" if close else f" (allowed: {', '.join(sorted(allowed))})"
-            raise MaterialError(f"{where}: unknown key {key!r}{hint}")
+            raise MaterialError(f"{where}: unknown key {_shown_key(key)}{hint}")
     missing = sorted(required - set(mapping))
     if missing:
         raise MaterialError(f"{where}: missing key {', '.join(map(repr, missing))}")
     return mapping
+
+
+def _shown_key(key):
+    """An unknown key as the message may show it: quoted if short and plain, else not at all.
+
+    A material file may be any file the user points at; its keys could be secrets.
+    """
+    if isinstance(key, str) and _PLAIN_KEY.fullmatch(key):
+        return f"'{key}'"
+    return "(not shown: long or not plain)"
+
+
+def _rejected_number(value):
+    """What a value :func:`_number` refuses is, in words, without quoting it."""
+    if isinstance(value, bool):
+        return "true/false"
+    if value is None:
+        return "nothing"
+    return {str: "text", list: "a list", dict: "a mapping"}.get(type(value), "an infinite or NaN number")
 
 
 def _text(value, where):
@@ -290,7 +323,7 @@ def _number(value, where):
         hint = ""
         if isinstance(value, str) and re.fullmatch(_NUMBER, value.strip()):
             hint = " (YAML read it as text: do not quote numbers)"
-        raise MaterialError(f"{where}: expected a finite number, got {value!r}{hint}")
+        raise MaterialError(f"{where}: expected a finite number, got {_rejected_number(value)}{hint}")
     return float(value)
 
 
@@ -302,14 +335,14 @@ def _numbers(value, where):
 
 def _unit(value, where, table=_LENGTH_M):
     if not isinstance(value, str) or value not in table:
-        raise MaterialError(f"{where}: unknown unit {value!r}; use one of {', '.join(table)}")
+        raise MaterialError(f"{where}: unknown unit; use one of {', '.join(table)}")
     return table[value]
 
 
 def _quantity(value, where, table):
     match = _QUANTITY.fullmatch(value) if isinstance(value, str) else None
     if match is None:
-        raise MaterialError(f"{where}: expected a number with a unit ({', '.join(table)}), got {value!r}")
+        raise MaterialError(f"{where}: expected a number with a unit ({', '.join(table)})")
     return float(match[1]) * _unit(match[2], where, table)
 
 

@@ -84,9 +84,10 @@ class SegmentSpec(Strict):
     #: A tilt of the face before it carries on inside (a plate in contact: parallel faces).
     parallel_faces: ClassVar[bool] = False
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         """Check what needs the wavelength axis or other files (materials); return the segment.
 
+        ``files`` (:class:`linkbudget.paths.LinkFiles`) locates the files the link refers to.
         Raises :class:`InputProblem` for input the schema alone cannot judge.
         """
         return self

@@ -44,12 +44,12 @@ class Layer(Strict):
             raise ValueError("quarter_waves counts quarter-waves at a quarter_wave design wavelength")
         return self
 
-    def resolve(self, wavelength_m, base_dir, key_path):
+    def resolve(self, wavelength_m, files, key_path):
         """(index over the wavelength axis, physical thickness [m])."""
-        index = resolve_index(self.index, self.material, wavelength_m, base_dir, key_path)
+        index = resolve_index(self.index, self.material, wavelength_m, files, key_path)
         if self.thickness is not None:
             return index, self.thickness
-        design = resolve_index(self.index, self.material, np.array([self.quarter_wave]), base_dir, key_path)
+        design = resolve_index(self.index, self.material, np.array([self.quarter_wave]), files, key_path)
         return index, float(quarter_wave_thickness_m(design.real[0], self.quarter_wave,
                                                      order=self.quarter_waves or 1))
 
@@ -66,8 +66,8 @@ class Coating(SegmentSpec):
     _stack: tuple | None = PrivateAttr(default=None)
     is_coating: ClassVar[bool] = True
 
-    def resolve(self, wavelength_m, base_dir):
-        resolved = [layer.resolve(wavelength_m, base_dir, ("layers", number))
+    def resolve(self, wavelength_m, files):
+        resolved = [layer.resolve(wavelength_m, files, ("layers", number))
                     for number, layer in enumerate(self.layers)]
         self._stack = (np.array([index for index, _ in resolved]), np.array([t for _, t in resolved]))
         return self

@@ -87,10 +87,10 @@ class _Joint(SegmentSpec):
             return self.joint
         return "air-gap" if self.gap is not None else "physical-contact"
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         if self.joint_type == "air-gap" or self.geometric:
             material = None if self.gap_index is not None else (self.gap_material or "air")
-            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, base_dir, ("gap_material",))
+            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, files, ("gap_material",))
         elif self.gap_material is not None or self.gap_index is not None:
             raise InputProblem(("gap_material" if self.gap_material else "gap_index",),
                                "a gap medium needs a gap, a tilt or an air-gap joint to act on")

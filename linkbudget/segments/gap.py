@@ -81,10 +81,10 @@ class Gap(Bulk):
             raise InputProblem(("aperture",), "offset and tilt apply to coupling into a mode, not to an aperture")
         return self
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         if self.index is None and self.material is None:
-            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, base_dir)
-        return super().resolve(wavelength_m, base_dir)
+            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, files)
+        return super().resolve(wavelength_m, files)
 
     def path_length_m(self, case):
         return self.length.at(case)

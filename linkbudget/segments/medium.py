@@ -163,8 +163,8 @@ class Medium(Bulk):
             raise ValueError("give its index or material, or its loss as kappa, absorption or attenuation")
         return self
 
-    def resolve(self, wavelength_m, base_dir):
-        super().resolve(wavelength_m, base_dir)
+    def resolve(self, wavelength_m, files):
+        super().resolve(wavelength_m, files)
         if self.multiple_reflections and self.medium_index() is None:
             raise InputProblem(("multiple_reflections",), "multiple reflections need faces: give index or material")
         return self

@@ -13,6 +13,7 @@ from pydantic import PrivateAttr, model_validator
 from linkbudget.config.fields import CASES, ComplexIndex, InputProblem, quantity
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, catalog_names, load_material
+from linkbudget.paths import PathRefused
 from linkbudget.segments.base import Row, SegmentSpec
 
 Polarization = Literal["s", "p", "unpolarized"]
@@ -21,7 +22,7 @@ Polarization = Literal["s", "p", "unpolarized"]
 MAX_ANGLE_RAD = np.deg2rad(89.0)
 
 
-def resolve_index(index, material, wavelength_m, base_dir, key_path=()):
+def resolve_index(index, material, wavelength_m, files, key_path=()):
     """The complex index over the wavelength axis from an ``index`` or a ``material`` key.
 
     Raises
@@ -32,12 +33,14 @@ def resolve_index(index, material, wavelength_m, base_dir, key_path=()):
     if index is not None:
         return np.full(np.shape(wavelength_m), index, dtype=complex)
     try:
-        return load_material(material, base_dir=base_dir).index(wavelength_m)
+        return load_material(material, files=files).index(wavelength_m)
     except MaterialRangeError as error:
         raise InputProblem((*key_path, "material"), str(error), _covering_hint(material, wavelength_m)) from None
     except MaterialError as error:
         raise InputProblem((*key_path, "material"), str(error),
                              "`linkbudget materials` lists the catalog") from None
+    except PathRefused as error:
+        raise InputProblem((*key_path, "material"), str(error), error.hint) from None
 
 
 def _covering_hint(material, wavelength_m):
@@ -75,9 +78,9 @@ class OpticalSegment(SegmentSpec):
             raise InputProblem(("angle",), "angle of incidence must be below 89 deg")
         return self
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         if self.index is not None or self.material is not None:
-            self._index = resolve_index(self.index, self.material, wavelength_m, base_dir)
+            self._index = resolve_index(self.index, self.material, wavelength_m, files)
         return self
 
     def medium_index(self):

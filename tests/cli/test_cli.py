@@ -170,7 +170,7 @@ def test_run_output_writes_the_report(cli, write_link, minimal_link, tmp_path):
     assert result.exit_code == 0, result.output
     assert result.stdout == ""
     assert report.read_text(encoding="utf-8") == cli("run", link, "--format", "json").stdout
-    assert [path.name for path in tmp_path.iterdir() if path.name.endswith(".tmp")] == []
+    assert [path.name for path in tmp_path.iterdir() if path.name.startswith(".")] == []
 
 
 def test_run_output_refuses_existing_file(cli, write_link, minimal_link, tmp_path):

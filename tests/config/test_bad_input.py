@@ -186,7 +186,7 @@ CASES = [
          "loss: |!!map", "chain[1].loss", ("does not fit this scalar",)),
     # A recursive alias (issue 7 item 17).
     Case("recursive-alias", edit("chain:\n", "chain: &a\n  - *a\n"),
-         "  - |*a", "(top level)", ("alias *a is inside the list or mapping it names",)),
+         "  - |*a", "(top level)", ("an alias is inside the list or mapping it names",)),
     # Integers beyond a float (issue 7 item 18).
     Case("count-beyond-float", append("  - kind: splice\n    loss: 0.1 dB\n    count: " + "9" * 400 + "\n"),
          "count: |999", "chain[2].count", ("must be <= 2**53",)),

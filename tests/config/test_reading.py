@@ -4,6 +4,8 @@ import os
 
 import pytest
 
+from linkbudget.paths import PathRefused
+
 import linkbudget
 from linkbudget.config.source import load_yaml
 from linkbudget.materials.library import MaterialError, load_material
@@ -68,9 +70,17 @@ def test_run_endless_file_exits_2(cli):
 
 
 @pytest.mark.skipif(not os.path.exists("/dev/zero"), reason="needs /dev/zero")
-def test_load_material_endless_file_is_refused():
-    with pytest.raises(MaterialError, match="larger than"):
+def test_load_material_endless_file_is_refused_unread():
+    with pytest.raises(PathRefused, match="not a regular file"):
         load_material("/dev/zero")
+
+
+def test_load_material_oversized_file_is_refused(tmp_path):
+    path = tmp_path / "huge.yaml"
+    with open(path, "wb") as stream:  # sparse: its size without writing its bytes
+        stream.truncate(MAX_FILE_BYTES + 1)
+    with pytest.raises(MaterialError, match="larger than"):
+        load_material(path)
 
 
 def test_load_material_alias_bomb_is_refused_while_reading(tmp_path):

@@ -8,6 +8,7 @@ import yaml
 from numpy.testing import assert_allclose
 
 from linkbudget.materials import Material, MaterialError, MaterialRangeError, catalog_names, load_material
+from linkbudget.paths import PathRefused
 from linkbudget.physics.flux import absorption_coefficient_from_kappa
 
 UM = 1e-6
@@ -273,11 +274,11 @@ table:
         (CAUCHY_GLASS, "source:", "sourse:", r"unknown key 'sourse' \(did you mean 'source'\?\)"),
         (CAUCHY_GLASS, "source: hand-made coefficients (2024)\n", "", r"missing key 'source'"),
         (CAUCHY_GLASS, "source: hand-made coefficients (2024)", "source: ''", r"source: must be non-empty text"),
-        (CAUCHY_GLASS, "400 nm", "400 furlong", r"valid_range.from: unknown unit 'furlong'"),
+        (CAUCHY_GLASS, "400 nm", "400 furlong", r"valid_range.from: unknown unit; use one of nm"),
         (CAUCHY_GLASS, "400 nm", "400", r"valid_range.from: expected a number with a unit"),
         (CAUCHY_GLASS, "to: 1.6 um", "to: 100 nm", r"valid_range: need 0 < from < to"),
         (CAUCHY_GLASS, "valid_range: {from: 400 nm, to: 1.6 um}\n", "", r"missing key 'valid_range'"),
-        (CAUCHY_GLASS, "wavelength_unit: um", "wavelength_unit: mile", r"unknown unit 'mile'"),
+        (CAUCHY_GLASS, "wavelength_unit: um", "wavelength_unit: mile", r"wavelength_unit: unknown unit; use one of nm"),
         (CAUCHY_GLASS, "[0, -2]", "[0]", r"2 coefficients but 1 powers"),
         (CAUCHY_GLASS, "[1.5, 0.004]", "[1.5, '4e-3']", r"coefficients\[1\]: expected a finite number.*do not quote"),
         (CAUCHY_GLASS, "[1.5, 0.004]", "[1.5, .nan]", r"coefficients\[1\]: expected a finite number"),
@@ -285,13 +286,13 @@ table:
         (CAUCHY_GLASS, "name: test-glass", "name: Test Glass", r"lowercase words joined by hyphens"),
         (CAUCHY_GLASS, "cauchy:", "kauchy:", r"unknown key 'kauchy' \(did you mean 'cauchy'\?\)"),
         (CAUCHY_GLASS, "cauchy:", "sellmeier: {b: [1.0], c: [0.1 um]}\ncauchy:", r"exactly one model"),
-        (CAUCHY_GLASS, CAUCHY_GLASS, "[1.5, 0.004]\n", r"bad\.yaml: expected a mapping of keys, got list"),
-        (CAUCHY_GLASS, "powers: [0, -2]", "powers: [0, -2", r"bad\.yaml: line 9, column 1: not valid YAML"),
+        (CAUCHY_GLASS, CAUCHY_GLASS, "[1.5, 0.004]\n", r"bad\.yaml: not a material file \(expected a mapping of keys\)"),
+        (CAUCHY_GLASS, "powers: [0, -2]", "powers: [0, -2", r"bad\.yaml: not a material file \(not valid YAML at line 9, column 1\)"),
         (TABLE_MATERIAL, "source:", "valid_range: {from: 1 um, to: 2 um}\nsource:", r"valid_range: not allowed"),
         (TABLE_MATERIAL, "[2.0, 1.9, 0.002]", "[0.5, 1.9, 0.002]", r"rows\[0\]: wavelengths must increase"),
         (TABLE_MATERIAL, "0.002]", "-0.002]", r"rows\[1\]: k must be >= 0"),
         (TABLE_MATERIAL, "[1.0, 2.0, 0.001]", "[1.0, 0.0, 0.001]", r"rows\[0\]: n must be positive"),
-        (TABLE_MATERIAL, "[1.0, 2.0, 0.001]", "[1.0, 2.0]", r"rows\[0\]: need 3 numbers"),
+        (TABLE_MATERIAL, "[1.0, 2.0, 0.001]", "[1.0, 2.0]", r"rows\[0\]: need a list of 3 numbers"),
         (TABLE_MATERIAL, "[wavelength, n, k]", "[wavelength, k, n]", r"columns: must be"),
         (TABLE_MATERIAL, "    - [2.0, 1.9, 0.002]\n", "", r"rows: need a list of at least two rows"),
     ],
@@ -310,7 +311,7 @@ def test_load_material_malformed_user_file_raises(tmp_path, base, old, new, mess
         ("sellmeier: {b: [1.0], c: [0.1]}", r"sellmeier.c\[0\]: expected a number with a unit"),
         ("sellmeier: {b: [one], c: [0.1 um]}", r"sellmeier.b\[0\]: expected a finite number"),
         ("sellmeier: {b: [1.0], c: [0.1 um], d: 1}", r"unknown key 'd'"),
-        ("gas: {b: [0.05 um^-2], c: [238 um]}", r"gas.c\[0\]: unknown unit 'um'"),
+        ("gas: {b: [0.05 um^-2], c: [238 um]}", r"gas.c\[0\]: unknown unit; use one of nm\^-2"),
     ],
 )
 def test_load_material_malformed_formula_block_raises(tmp_path, block, message):
@@ -331,5 +332,5 @@ def test_load_material_user_gas_file(tmp_path):
 
 
 def test_load_material_missing_file_raises(tmp_path):
-    with pytest.raises(MaterialError, match=r"cannot read material file .*absent\.yaml"):
+    with pytest.raises(PathRefused, match=r"cannot read file 'absent\.yaml': No such file"):
         load_material("absent.yaml", base_dir=tmp_path)
