@@ -19,14 +19,15 @@ from typing import Literal
 
 from pydantic import model_validator
 
-from linkbudget.config.fields import ComplexIndex, InputProblem, Strict, integer
+from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, integer
+from linkbudget.config.ranges import RANGES
 from linkbudget.physics import flux
 from linkbudget.segments.base import (
-    AttenuationSpread,
-    LengthSpread,
-    LossSpread,
+    JointLossSpread,
     Mode,
-    PositiveLengthSpread,
+    ModeFieldDiameterSpread,
+    attenuation_spread,
+    length_spread,
     flat_over_wavelength,
 )
 from linkbudget.segments.medium import absorption_coefficient_per_m
@@ -36,8 +37,8 @@ from linkbudget.segments.optics import OpticalSegment
 class CountedLoss(Strict):
     """``count`` identical features (bends, crossings), each with insertion ``loss``."""
 
-    count: integer(minimum=0)
-    loss: LossSpread
+    count: integer(bounds=RANGES["feature count"])
+    loss: JointLossSpread
 
     def loss_db(self, case):
         """Total loss of the features [dB] for a budget case."""
@@ -47,8 +48,8 @@ class CountedLoss(Strict):
 class ModeSize(Strict):
     """A rectangular guide's mode: 1/e² intensity mode-field diameters along x and y."""
 
-    width: PositiveLengthSpread
-    height: PositiveLengthSpread
+    width: ModeFieldDiameterSpread
+    height: ModeFieldDiameterSpread
 
 
 class Waveguide(OpticalSegment):
@@ -64,12 +65,12 @@ class Waveguide(OpticalSegment):
     """
 
     kind: Literal["waveguide"]
-    length: LengthSpread
-    attenuation: AttenuationSpread | None = None
-    effective_index: ComplexIndex | None = None
+    length: length_spread("waveguide length")
+    attenuation: attenuation_spread("waveguide attenuation") | None = None
+    effective_index: DielectricIndex | None = None
     bends: CountedLoss | None = None
     crossings: CountedLoss | None = None
-    mode_field_diameter: PositiveLengthSpread | None = None
+    mode_field_diameter: ModeFieldDiameterSpread | None = None
     mode_size: ModeSize | None = None
 
     @model_validator(mode="after")
