@@ -7,6 +7,7 @@ mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``)
 """
 
 import math
+import typing
 import re
 from functools import cache
 from typing import Annotated, Any, ClassVar
@@ -259,3 +260,42 @@ def spread(dimension, *, bounds=None):
     )
     model.bounds = bounds
     return model
+
+
+def _bounds_of(field_info):
+    """The :class:`~linkbudget.config.ranges.Range` a schema field is checked against, if any."""
+    def search(items):
+        for item in items:
+            if isinstance(item, Range):
+                return item
+            found = search(typing.get_args(item)) if typing.get_args(item) else None
+            if found is not None:
+                return found
+        return None
+
+    return search([*field_info.metadata, field_info.annotation])
+
+
+def range_notes(model, prefix=""):
+    """Notes on the possible but unusual values of a validated model and the models inside it.
+
+    Each note is ``key.path: what``: a value past an :class:`~linkbudget.config.ranges.Unusual`
+    threshold of its range, or a normal spread's low end clipped to its bound.
+    """
+    found = []
+    for name, info in type(model).model_fields.items():
+        value = getattr(model, name)
+        key = f"{prefix}{info.alias or name}"
+        if isinstance(value, SpreadBase):
+            found += [f"{key}: {note}" for note in value.notes()]
+        elif isinstance(value, Strict):
+            found += range_notes(value, f"{key}.")
+        elif isinstance(value, list):
+            for number, item in enumerate(value):
+                if isinstance(item, Strict):
+                    found += range_notes(item, f"{key}[{number}].")
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            bounds = _bounds_of(info)
+            if bounds is not None:
+                found += [f"{key}: {note}" for note in bounds.notes([value])]
+    return found

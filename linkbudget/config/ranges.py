@@ -218,6 +218,21 @@ INDEX_RULES = (
 )
 
 
+#: A guided mode's or a beam's 1/e² diameter is at least the wavelength over this factor
+#: (about λ/(2n) in the highest-index optical materials, n ≈ 4; common practice margin).
+MODE_DIAMETER_PER_WAVELENGTH = 0.1
+
+
+def mode_size_problem(diameter_m, wavelength_m):
+    """The message for a mode field diameter too small for the longest wavelength, or ``None``."""
+    smallest_m = MODE_DIAMETER_PER_WAVELENGTH * max(wavelength_m)
+    if diameter_m >= smallest_m:
+        return None
+    return (f"a mode field diameter must be at least {MODE_DIAMETER_PER_WAVELENGTH:g} of the wavelength "
+            f"({smallest_m * 1e6:g} um at {max(wavelength_m) * 1e9:g} nm): no guided mode or beam is confined "
+            f"below about half a wavelength in the densest optical material; got {diameter_m * 1e6:g} um")
+
+
 def index_problem(index, *, metal_allowed):
     """The message for a complex index outside its valid forms, or ``None``.
 
@@ -247,8 +262,8 @@ def index_problem(index, *, metal_allowed):
 def index_notes(index):
     """Notes for a valid index array (a metal: n < 1 or κ >= 1 somewhere on the axis)."""
     if (index.real < 1).any() or (index.imag >= DIELECTRIC_KAPPA_MAX).any():
-        return [f"index from {index.real.min():g}{index.imag.min():+g}j: a metal (n < 1 or kappa >= 1); "
-                "its faces reflect most of the light"]
+        return [f"index n down to {index.real.min():g}, kappa up to {index.imag.max():g}: a metal (n < 1 or "
+                "kappa >= 1); its faces reflect most of the light"]
     return []
 
 

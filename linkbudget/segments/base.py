@@ -5,8 +5,8 @@ from typing import ClassVar
 
 import numpy as np
 
-from linkbudget.config.fields import CASES, Strict, spread
-from linkbudget.config.ranges import RANGES
+from linkbudget.config.fields import CASES, InputProblem, Strict, spread
+from linkbudget.config.ranges import RANGES, mode_size_problem
 
 #: The spread types the segment kinds share (one definition each), by their valid range.
 JointLossSpread = spread("ratio", bounds=RANGES["joint loss"])
@@ -28,6 +28,15 @@ def length_spread(what):
 def attenuation_spread(what):
     """The spread type of an attenuation whose valid range is ``RANGES[what]``."""
     return spread("attenuation", bounds=RANGES[what])
+
+
+def check_mode_sizes(diameters, wavelength_m):
+    """Raise :class:`InputProblem` at the first diameter spread (key path -> spread or ``None``)
+    whose smallest value is too small a mode for the wavelength axis."""
+    for key_path, diameter in diameters.items():
+        message = None if diameter is None else mode_size_problem(diameter.low, wavelength_m)
+        if message is not None:
+            raise InputProblem(key_path, message)
 
 
 def flat_over_wavelength(value_db, wavelength_m):

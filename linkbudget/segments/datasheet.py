@@ -29,6 +29,7 @@ from linkbudget.segments.base import (
     Row,
     SegmentSpec,
     TiltSpread,
+    check_mode_sizes,
     length_spread,
     flat_over_wavelength,
 )
@@ -90,6 +91,8 @@ class _Joint(SegmentSpec):
         return "air-gap" if self.gap is not None else "physical-contact"
 
     def resolve(self, wavelength_m, base_dir):
+        check_mode_sizes({(f"mode_field_diameter_{side}",): getattr(self, f"mode_field_diameter_{side}")
+                          for side in ("before", "after")}, wavelength_m)
         if self.joint_type == "air-gap" or self.geometric:
             material = None if self.gap_index is not None else (self.gap_material or "air")
             self._gap_index = resolve_index(self.gap_index, material, wavelength_m, base_dir, ("gap_material",))

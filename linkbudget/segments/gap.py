@@ -18,7 +18,7 @@ import numpy as np
 from pydantic import model_validator
 
 from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, Strict
-from linkbudget.config.ranges import RANGES
+from linkbudget.config.ranges import RANGES, mode_size_problem
 from linkbudget.physics import atmosphere, flux, gaussian
 from linkbudget.segments.base import (
     Mode,
@@ -84,6 +84,10 @@ class Gap(Bulk):
         return self
 
     def resolve(self, wavelength_m, base_dir):
+        waist = None if self.beam is None else self.beam.waist
+        message = None if waist is None else mode_size_problem(2 * waist.low, wavelength_m)
+        if message is not None:
+            raise InputProblem(("beam", "waist"), f"the beam's waist is a radius, half its diameter: {message}")
         if self.index is None and self.material is None:
             return self.model_copy(update={"material": "air"}).resolve(wavelength_m, base_dir)
         return super().resolve(wavelength_m, base_dir)

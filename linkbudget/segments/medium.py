@@ -22,6 +22,7 @@ from linkbudget.segments.base import (
     Mode,
     ModeFieldDiameterSpread,
     attenuation_spread,
+    check_mode_sizes,
     length_spread,
 )
 from linkbudget.segments.optics import OpticalSegment
@@ -89,6 +90,10 @@ class Fiber(OpticalSegment):
                                f"most 1: NA = sqrt(n_core² - n_cladding²) < n_core = {self.index.real:g}; "
                                f"got {self.numerical_aperture:g}")
         return self
+
+    def resolve(self, wavelength_m, base_dir):
+        check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter}, wavelength_m)
+        return super().resolve(wavelength_m, base_dir)
 
     def mode(self, wavelength_m):
         """The fundamental mode: the datasheet mode field diameter (the same at every wavelength),

@@ -27,6 +27,7 @@ from linkbudget.segments.base import (
     Mode,
     ModeFieldDiameterSpread,
     attenuation_spread,
+    check_mode_sizes,
     length_spread,
     flat_over_wavelength,
 )
@@ -124,6 +125,13 @@ class Waveguide(OpticalSegment):
     def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
         """Sum of :meth:`loss_parts_db`; ``cos_inside`` is ignored (the mode follows the guide)."""
         return sum(self.loss_parts_db(wavelength_m, case).values())
+
+    def resolve(self, wavelength_m, base_dir):
+        size = self.mode_size
+        check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter,
+                          ("mode_size", "width"): None if size is None else size.width,
+                          ("mode_size", "height"): None if size is None else size.height}, wavelength_m)
+        return super().resolve(wavelength_m, base_dir)
 
     def mode(self, wavelength_m):
         if self.mode_field_diameter is not None:
