@@ -18,7 +18,8 @@ from functools import cached_property
 import numpy as np
 
 from linkbudget.cautions import CAUTIONS
-from linkbudget.config.fields import CASES
+from linkbudget.config.fields import CASES, range_notes
+from linkbudget.config.ranges import index_notes
 from linkbudget.physics import fresnel, thinfilm
 from linkbudget.physics.decibel import (
     loss_db_from_transmittance,
@@ -225,6 +226,19 @@ def _noted(notes, owner, function, *args):
     return value
 
 
+def segment_notes(segment):
+    """Notes on a segment's possible but unusual input: its values (:func:`range_notes`) and a
+    metal's index (:func:`linkbudget.config.ranges.index_notes`) on its own faces or in its layers."""
+    notes = range_notes(segment)
+    index = segment.medium_index()
+    if index is not None:
+        notes += index_notes(index)
+    if segment.is_coating:
+        notes += [f"layers[{number}]: {note}" for number, layer_index in enumerate(segment.layer_index)
+                  for note in index_notes(layer_index)]
+    return notes
+
+
 def budget_rows(segments, wavelength_m):
     """The budget rows: every segment, with the interfaces and coatings between media inserted.
 
@@ -243,7 +257,7 @@ def budget_rows(segments, wavelength_m):
     Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised by each segment's
     own model (its mode, its loss), prefixed by its name.
     """
-    notes = []
+    notes = [f"{segment.name}: {note}" for segment in segments for note in segment_notes(segment)]
     modes = [_noted(notes, segment.name, segment.mode, wavelength_m) for segment in segments]
     rows, upstream, joint, coating = [], None, None, None
     for position, segment in enumerate(segments):
@@ -305,6 +319,8 @@ def evaluate(link, *, required_margin_db=None):
     spec = link.spec
     wavelength_m = spec.wavelengths_m()
     rows, notes = budget_rows(link.segments, wavelength_m)
+    notes = (*(f"{part}: {note}" for part in ("source", "receiver") for note in range_notes(getattr(spec, part))),
+             *notes)
     power = spec.source.power
     source_dbm = {case: np.full(wavelength_m.shape, power.at(case, larger_hurts=False)) for case in CASES}
     receiver = spec.receiver

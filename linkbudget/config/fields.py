@@ -8,6 +8,7 @@ mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``)
 
 import math
 import sys
+import typing
 from functools import cache
 from typing import Annotated, Any, ClassVar
 
@@ -19,6 +20,7 @@ from pydantic import (
     model_validator,
 )
 
+from linkbudget.config.ranges import Range, index_problem
 from linkbudget.units import parse_quantity
 
 #: Number of standard deviations a ``{mean, sigma}`` spread spans on each side in the
@@ -27,10 +29,6 @@ SIGMA_SPAN = 3.0
 
 #: The budget cases. ``worst`` takes every value at the end that hurts, ``best`` at the other.
 CASES = ("typ", "worst", "best")
-
-
-#: Largest count accepted: every whole number up to it is exactly a float, as the budget uses it.
-MAX_COUNT = 2**53
 
 
 class InputProblem(ValueError):
@@ -52,35 +50,29 @@ class Strict(BaseModel):
     model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=False)
 
 
-def _bounded(value, minimum, strictly_positive):
+def _within(value, bounds):
     if math.isnan(value):
         raise ValueError("value is NaN")
-    if minimum is not None and value < minimum:
-        raise ValueError("must not be negative" if minimum == 0 else f"must be >= {minimum:g}")
-    if strictly_positive and value <= 0:
-        raise ValueError("must be > 0")
-    return value
+    return value if bounds is None else bounds.check(value)
 
 
-def quantity(dimension, *, minimum=None, strictly_positive=False):
+def quantity(dimension, *, bounds=None):
     """An annotated float field parsed from a quantity string of ``dimension``.
 
     Parameters
     ----------
     dimension : str
         A dimension of :data:`linkbudget.units.UNITS`.
-    minimum : float, optional
-        Smallest allowed value in the internal unit (e.g. 0 for a length).
-    strictly_positive : bool
-        Reject zero as well.
+    bounds : linkbudget.config.ranges.Range, optional
+        The valid range (internal unit); a value outside it is an input error that states it.
     """
     def parse(value):
-        return _bounded(parse_quantity(value, dimension), minimum, strictly_positive)
+        return _within(parse_quantity(value, dimension), bounds)
 
-    return Annotated[float, BeforeValidator(parse)]
+    return Annotated[float, BeforeValidator(parse), bounds]
 
 
-def number(*, minimum=None, strictly_positive=False):
+def number(*, bounds=None):
     """An annotated float field for a dimensionless number (an index, a ratio of powers)."""
     def parse(value):
         if isinstance(value, bool) or not isinstance(value, (int, float)):
@@ -89,23 +81,19 @@ def number(*, minimum=None, strictly_positive=False):
             raise ValueError(f"a number beyond ±{sys.float_info.max:.3g} is out of range")
         if not math.isfinite(value):
             raise ValueError(f"{value!r} is not a finite number")
-        return _bounded(float(value), minimum, strictly_positive)
+        return _within(float(value), bounds)
 
-    return Annotated[float, BeforeValidator(parse)]
+    return Annotated[float, BeforeValidator(parse), bounds]
 
 
-def integer(*, minimum=None):
-    """An annotated int field for a count."""
+def integer(*, bounds):
+    """An annotated int field for a count within ``bounds`` (a :class:`~linkbudget.config.ranges.Range`)."""
     def parse(value):
         if isinstance(value, bool) or not isinstance(value, int):
             raise ValueError(f"expected a whole number, got {value!r}")
-        if minimum is not None and value < minimum:
-            raise ValueError(f"must be >= {minimum}")
-        if value > MAX_COUNT:
-            raise ValueError(f"must be <= 2**53 = {MAX_COUNT}")
-        return value
+        return bounds.check(value)
 
-    return Annotated[int, BeforeValidator(parse)]
+    return Annotated[int, BeforeValidator(parse), bounds]
 
 
 def complex_index(value):
@@ -125,7 +113,23 @@ def complex_index(value):
     return index
 
 
-ComplexIndex = Annotated[complex, BeforeValidator(complex_index)]
+def _index_field(*, metal_allowed):
+    """An index field: a passive index (:func:`complex_index`) of one of the valid forms
+    (:func:`linkbudget.config.ranges.index_problem`)."""
+    def parse(value):
+        index = complex_index(value)
+        message = index_problem(index, metal_allowed=metal_allowed)
+        if message is not None:
+            raise ValueError(message)
+        return index
+
+    return Annotated[complex, BeforeValidator(parse)]
+
+
+#: The index of a segment that may be a metal (a bulk medium, a thin-film layer).
+ComplexIndex = _index_field(metal_allowed=True)
+#: The index of a transparent medium (a fibre's or waveguide's faces, a gap, a mode's effective index).
+DielectricIndex = _index_field(metal_allowed=False)
 
 
 class SpreadBase(Strict):
@@ -136,10 +140,8 @@ class SpreadBase(Strict):
     at the midpoint; ``{mean, sigma}`` spans ``mean ± SIGMA_SPAN·sigma``.
     """
 
-    #: Lower physical bound of the values (a normal spread's low end is clipped to it).
-    minimum: ClassVar[float | None] = None
-    #: The values must be > 0 (a diameter, a visibility): a normal spread must not reach 0.
-    strictly_positive: ClassVar[bool] = False
+    #: The valid range of the values (a normal spread's low end is clipped to a closed lower bound).
+    bounds: ClassVar[Range | None] = None
 
     min: Any = None
     typ: Any = None
@@ -158,15 +160,38 @@ class SpreadBase(Strict):
         if given & {"mean", "sigma"}:
             if given != {"mean", "sigma"}:
                 raise ValueError("a normal spread is written {mean, sigma} and nothing else")
-            if self.strictly_positive and self.low <= 0:
-                raise InputProblem(("sigma",), f"mean - {SIGMA_SPAN:g} sigma must stay > 0 for this value",
-                                   "the worst case spans mean ± 3 sigma; give a smaller sigma or {min, typ, max}")
+            self._check_normal_ends()
             return self
         if self.typ is None and not {"min", "max"} <= given:
             raise ValueError("a spread needs typ, or both min and max")
         if not self.low <= self.typ_value <= self.high:
             raise InputProblem(("max",) if "max" in given else ("typ",), "a spread must have min <= typ <= max")
         return self
+
+    def _check_normal_ends(self):
+        """mean ± 3σ within the bounds; only a physical floor of 0 (a loss, a length) may be passed at
+        the low end: the low end is then clipped to 0 and noted."""
+        bounds = self.bounds
+        if bounds is None:
+            return
+        reach = {"-": self.mean - SIGMA_SPAN * self.sigma, "+": self.mean + SIGMA_SPAN * self.sigma}
+        for side, value in reach.items():
+            clipped = side == "-" and bounds.low == 0 and not bounds.low_open
+            if not clipped and not bounds.contains(value):
+                raise InputProblem(("sigma",), f"mean {side} {SIGMA_SPAN:g} sigma must stay within the range "
+                                   f"of the {bounds.what}, {bounds.text()}: {bounds.why}; got {bounds.shown(value)}",
+                                   "the worst case spans mean ± 3 sigma; give a smaller sigma or {min, typ, max}")
+
+    def notes(self):
+        """Notes on the spread: its ends past an unusual threshold, its low end clipped to the bound."""
+        if self.bounds is None:
+            return []
+        found = self.bounds.notes([self.low, self.high])
+        if self.mean is not None and self.mean - SIGMA_SPAN * self.sigma < self.low:
+            found.append(f"{self.bounds.what} mean - {SIGMA_SPAN:g} sigma = "
+                         f"{self.bounds.shown(self.mean - SIGMA_SPAN * self.sigma)} is below "
+                         f"{self.bounds.shown(self.low)}; the low end is taken at {self.bounds.shown(self.low)}")
+        return found
 
     @property
     def typ_value(self):
@@ -181,7 +206,8 @@ class SpreadBase(Strict):
     def low(self):
         if self.mean is not None:
             low = self.mean - SIGMA_SPAN * self.sigma
-            return low if self.minimum is None else max(low, self.minimum)
+            bounds = self.bounds
+            return low if bounds is None or bounds.low != 0 else max(low, bounds.low)
         return self.min if self.min is not None else self.typ_value
 
     @property
@@ -202,25 +228,70 @@ class SpreadBase(Strict):
         return self.high if hurts else self.low
 
 
+#: Internal unit of each dimension, the unit a spread's sigma is shown in.
+_INTERNAL_UNIT = {"length": "m", "power": "dB", "ratio": "dB", "attenuation": "dB/m", "absorption": "/m",
+                  "angle": "rad", "number": ""}
+
+
 @cache
-def spread(dimension, *, minimum=None, strictly_positive=False):
-    """A spread model whose values are quantities of ``dimension`` (sigma of a power is in dB).
+def spread(dimension, *, bounds=None):
+    """A spread model whose values are quantities of ``dimension`` within ``bounds`` (a
+    :class:`~linkbudget.config.ranges.Range`); sigma of a power is in dB.
 
     ``dimension="number"`` makes a spread of dimensionless numbers.
     """
+    sigma = Range("sigma", "", 0.0, None, _INTERNAL_UNIT[dimension], "a spread's width is not negative")
     if dimension == "number":
-        value = number(minimum=minimum, strictly_positive=strictly_positive)
-        width = number(minimum=0.0)
+        value = number(bounds=bounds)
+        width = number(bounds=sigma)
     else:
-        value = quantity(dimension, minimum=minimum, strictly_positive=strictly_positive)
-        width = quantity("ratio" if dimension == "power" else dimension, minimum=0.0)
+        value = quantity(dimension, bounds=bounds)
+        width = quantity("ratio" if dimension == "power" else dimension, bounds=sigma)
     model = create_model(
-        f"Spread_{dimension}",
+        f"Spread_{dimension}_{'any' if bounds is None else bounds.what.replace(' ', '_')}",
         __base__=SpreadBase,
         __module__=__name__,
         **{key: (value | None, None) for key in ("min", "typ", "max", "mean")},
         sigma=(width | None, None),
     )
-    model.minimum = minimum
-    model.strictly_positive = strictly_positive
+    model.bounds = bounds
     return model
+
+
+def _bounds_of(field_info):
+    """The :class:`~linkbudget.config.ranges.Range` a schema field is checked against, if any."""
+    def search(items):
+        for item in items:
+            if isinstance(item, Range):
+                return item
+            found = search(typing.get_args(item)) if typing.get_args(item) else None
+            if found is not None:
+                return found
+        return None
+
+    return search([*field_info.metadata, field_info.annotation])
+
+
+def range_notes(model, prefix=""):
+    """Notes on the possible but unusual values of a validated model and the models inside it.
+
+    Each note is ``key.path: what``: a value past an :class:`~linkbudget.config.ranges.Unusual`
+    threshold of its range, or a normal spread's low end clipped to its bound.
+    """
+    found = []
+    for name, info in type(model).model_fields.items():
+        value = getattr(model, name)
+        key = f"{prefix}{info.alias or name}"
+        if isinstance(value, SpreadBase):
+            found += [f"{key}: {note}" for note in value.notes()]
+        elif isinstance(value, Strict):
+            found += range_notes(value, f"{key}.")
+        elif isinstance(value, list):
+            for number, item in enumerate(value):
+                if isinstance(item, Strict):
+                    found += range_notes(item, f"{key}[{number}].")
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            bounds = _bounds_of(info)
+            if bounds is not None:
+                found += [f"{key}: {note}" for note in bounds.notes([value])]
+    return found

@@ -6,35 +6,30 @@ import numpy as np
 from pydantic import Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Strict, quantity, spread
-
-#: Wavelengths a link may carry [m]: the ultraviolet to the far infrared.
-OPTICAL_RANGE_M = (100e-9, 100e-6)
+from linkbudget.config.ranges import RANGES
 
 #: Most wavelengths a band may expand to.
 MAX_WAVELENGTHS = 100_000
 
 
-def _optical(wavelength_m, key_path):
-    low, high = OPTICAL_RANGE_M
-    if not low <= wavelength_m <= high:
-        raise InputProblem(key_path, f"{wavelength_m * 1e9:g} nm is outside the optical range "
-                           f"{low * 1e9:g} nm to {high * 1e9:g} nm")
-
-
-Length = quantity("length", strictly_positive=True)
+Wavelength = quantity("length", bounds=RANGES["wavelength"])
 
 
 class Band(Strict):
     """A wavelength sweep ``{from, to, step}``, both ends included."""
 
-    start: Length = Field(alias="from")
-    stop: Length = Field(alias="to")
-    step: Length
+    start: Wavelength = Field(alias="from")
+    stop: Wavelength = Field(alias="to")
+    step: quantity("length", bounds=RANGES["band step"])
 
     @model_validator(mode="after")
     def _ordered(self):
         if self.stop <= self.start:
             raise InputProblem(("to",), "a band needs from < to")
+        if self.step > self.stop - self.start:
+            step = RANGES["band step"]
+            raise InputProblem(("step",), f"{step.what} must be {step.text()}: {step.why}; got "
+                               f"{step.shown(self.step)} for a span of {step.shown(self.stop - self.start)}")
         if (self.stop - self.start) / self.step + 1 > MAX_WAVELENGTHS:
             raise ValueError(f"the band holds more than {MAX_WAVELENGTHS} wavelengths; use a larger step")
         return self
@@ -47,22 +42,23 @@ class Band(Strict):
 class Source(Strict):
     """The transmitter: launch ``power`` into the first segment (a spread is allowed)."""
 
-    power: spread("power")
+    power: spread("power", bounds=RANGES["source power"])
     name: str | None = None
 
 
 class Receiver(Strict):
     """The receiver: ``sensitivity``, optional ``overload``, and the ``required_margin``."""
 
-    sensitivity: quantity("power")
-    overload: quantity("power") | None = None
-    required_margin: quantity("ratio", minimum=0.0) = 0.0
+    sensitivity: quantity("power", bounds=RANGES["receiver power"])
+    overload: quantity("power", bounds=RANGES["receiver power"]) | None = None
+    required_margin: quantity("ratio", bounds=RANGES["required margin"]) = 0.0
     name: str | None = None
 
     @model_validator(mode="after")
     def _overload_above_sensitivity(self):
         if self.overload is not None and self.overload <= self.sensitivity:
-            raise InputProblem(("overload",), "overload must be above sensitivity")
+            raise InputProblem(("overload",), "overload must be above sensitivity: a receiver works between the "
+                               f"two; got {self.overload:g} dBm <= {self.sensitivity:g} dBm")
         return self
 
 
@@ -71,8 +67,8 @@ class LinkSpec(Strict):
 
     title: str
     description: str | None = None
-    wavelength: Length | None = None
-    channels: list[Length] | None = Field(default=None, min_length=1)
+    wavelength: Wavelength | None = None
+    channels: list[Wavelength] | None = Field(default=None, min_length=1)
     band: Band | None = None
     source: Source
     receiver: Receiver
@@ -83,13 +79,6 @@ class LinkSpec(Strict):
         given = [key for key in ("wavelength", "channels", "band") if getattr(self, key) is not None]
         if len(given) != 1:
             raise InputProblem(given[1:2], "give exactly one of wavelength, channels or band")
-        if self.wavelength is not None:
-            _optical(self.wavelength, ("wavelength",))
-        for number, wavelength_m in enumerate(self.channels or ()):
-            _optical(wavelength_m, ("channels", number))
-        if self.band is not None:
-            _optical(self.band.start, ("band", "from"))
-            _optical(self.band.stop, ("band", "to"))
         return self
 
     def wavelengths_m(self):

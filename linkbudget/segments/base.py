@@ -5,18 +5,38 @@ from typing import ClassVar
 
 import numpy as np
 
-from linkbudget.config.fields import CASES, Strict, spread
+from linkbudget.config.fields import CASES, InputProblem, Strict, spread
+from linkbudget.config.ranges import RANGES, mode_size_problem
 
-#: The spread types the segment kinds share (one definition each).
-LossSpread = spread("ratio", minimum=0.0)
-SignedLossSpread = spread("ratio")
-LengthSpread = spread("length", minimum=0.0)
-PositiveLengthSpread = spread("length", strictly_positive=True)
-AngleSpread = spread("angle", minimum=0.0)
-PositiveAngleSpread = spread("angle", strictly_positive=True)
-AttenuationSpread = spread("attenuation", minimum=0.0)
-AbsorptionSpread = spread("absorption", minimum=0.0)
-KappaSpread = spread("number", minimum=0.0)
+#: The spread types the segment kinds share (one definition each), by their valid range.
+JointLossSpread = spread("ratio", bounds=RANGES["joint loss"])
+ExcessLossSpread = spread("ratio", bounds=RANGES["excess loss"])
+ElementLossSpread = spread("ratio", bounds=RANGES["element loss"])
+TiltSpread = spread("angle", bounds=RANGES["tilt"])
+OffsetSpread = spread("length", bounds=RANGES["offset"])
+ModeFieldDiameterSpread = spread("length", bounds=RANGES["mode field diameter"])
+AbsorptionSpread = spread("absorption", bounds=RANGES["absorption coefficient"])
+BulkAttenuationSpread = spread("attenuation", bounds=RANGES["bulk attenuation"])
+KappaSpread = spread("number", bounds=RANGES["extinction coefficient"])
+
+
+def length_spread(what):
+    """The spread type of a length whose valid range is ``RANGES[what]``."""
+    return spread("length", bounds=RANGES[what])
+
+
+def attenuation_spread(what):
+    """The spread type of an attenuation whose valid range is ``RANGES[what]``."""
+    return spread("attenuation", bounds=RANGES[what])
+
+
+def check_mode_sizes(diameters, wavelength_m):
+    """Raise :class:`InputProblem` at the first diameter spread (key path -> spread or ``None``)
+    whose smallest value is too small a mode for the wavelength axis."""
+    for key_path, diameter in diameters.items():
+        message = None if diameter is None else mode_size_problem(diameter.low, wavelength_m)
+        if message is not None:
+            raise InputProblem(key_path, message)
 
 
 def flat_over_wavelength(value_db, wavelength_m):

@@ -8,14 +8,16 @@ between the media of its two neighbours.
 from typing import ClassVar, Literal
 
 import numpy as np
-from pydantic import Field, PrivateAttr, model_validator
+from pydantic import PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     ComplexIndex,
+    InputProblem,
     Strict,
     integer,
     quantity,
 )
+from linkbudget.config.ranges import RANGES
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
 from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.optics import resolve_index
@@ -30,9 +32,9 @@ class Layer(Strict):
 
     material: str | None = None
     index: ComplexIndex | None = None
-    thickness: quantity("length", minimum=0.0) | None = None
-    quarter_wave: quantity("length", strictly_positive=True) | None = None
-    quarter_waves: integer(minimum=1) | None = None
+    thickness: quantity("length", bounds=RANGES["layer thickness"]) | None = None
+    quarter_wave: quantity("length", bounds=RANGES["wavelength"]) | None = None
+    quarter_waves: integer(bounds=RANGES["quarter-wave count"]) | None = None
 
     @model_validator(mode="after")
     def _one_of_each(self):
@@ -62,9 +64,16 @@ class Coating(SegmentSpec):
     """
 
     kind: Literal["coating"]
-    layers: list[Layer] = Field(min_length=1)
+    layers: list[Layer]
     _stack: tuple | None = PrivateAttr(default=None)
     is_coating: ClassVar[bool] = True
+
+    @model_validator(mode="after")
+    def _layer_count(self):
+        message = RANGES["layer count"].problem(len(self.layers))
+        if message is not None:
+            raise InputProblem(("layers",), message)
+        return self
 
     def resolve(self, wavelength_m, files):
         resolved = [layer.resolve(wavelength_m, files, ("layers", number))

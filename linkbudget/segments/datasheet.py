@@ -14,21 +14,24 @@ from pydantic import PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     CASES,
-    ComplexIndex,
+    DielectricIndex,
     InputProblem,
     integer,
     quantity,
 )
+from linkbudget.config.ranges import RANGES
 from linkbudget.segments.base import (
-    AngleSpread,
-    LengthSpread,
-    LossSpread,
+    ElementLossSpread,
+    JointLossSpread,
     Mode,
-    PositiveLengthSpread,
+    ModeFieldDiameterSpread,
+    OffsetSpread,
     Row,
     SegmentSpec,
-    SignedLossSpread,
+    TiltSpread,
+    check_mode_sizes,
     flat_over_wavelength,
+    length_spread,
 )
 from linkbudget.segments.coupling import coupling_losses_db
 from linkbudget.segments.optics import resolve_index
@@ -54,15 +57,15 @@ class _Joint(SegmentSpec):
     passes_faces: ClassVar[bool] = True
     sets_joint: ClassVar[bool] = True
 
-    loss: LossSpread | None = None
+    loss: JointLossSpread | None = None
     joint: JointType | None = None
-    offset: LengthSpread | None = None
-    tilt: AngleSpread | None = None
-    gap: LengthSpread | None = None
+    offset: OffsetSpread | None = None
+    tilt: TiltSpread | None = None
+    gap: length_spread("joint gap") | None = None
     gap_material: str | None = None
-    gap_index: ComplexIndex | None = None
-    mode_field_diameter_before: PositiveLengthSpread | None = None
-    mode_field_diameter_after: PositiveLengthSpread | None = None
+    gap_index: DielectricIndex | None = None
+    mode_field_diameter_before: ModeFieldDiameterSpread | None = None
+    mode_field_diameter_after: ModeFieldDiameterSpread | None = None
     _gap_index: np.ndarray | None = PrivateAttr(default=None)
 
     @model_validator(mode="after")
@@ -88,6 +91,8 @@ class _Joint(SegmentSpec):
         return "air-gap" if self.gap is not None else "physical-contact"
 
     def resolve(self, wavelength_m, files):
+        check_mode_sizes({(f"mode_field_diameter_{side}",): getattr(self, f"mode_field_diameter_{side}")
+                          for side in ("before", "after")}, wavelength_m)
         if self.joint_type == "air-gap" or self.geometric:
             material = None if self.gap_index is not None else (self.gap_material or "air")
             self._gap_index = resolve_index(self.gap_index, material, wavelength_m, files, ("gap_material",))
@@ -126,7 +131,7 @@ class Connector(_Joint):
     """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
 
     kind: Literal["connector"]
-    return_loss: quantity("ratio", minimum=0.0) | None = None
+    return_loss: quantity("ratio", bounds=RANGES["return loss"]) | None = None
 
     def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
         row = super().budget_row(wavelength_m, mode_before=mode_before, mode_after=mode_after)
@@ -142,7 +147,7 @@ class Splice(_Joint):
     """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
 
     kind: Literal["splice"]
-    count: integer(minimum=1) = 1
+    count: integer(bounds=RANGES["splice count"]) = 1
 
     def loss_db(self, wavelength_m, case):
         return flat_over_wavelength(self.count * self.loss.at(case), wavelength_m)
@@ -158,7 +163,7 @@ class Element(SegmentSpec):
     passes_faces: ClassVar[bool] = True
 
     kind: Literal["element"]
-    loss: SignedLossSpread
+    loss: ElementLossSpread
     note: str | None = None
 
     def loss_db(self, wavelength_m, case):

@@ -17,15 +17,16 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import CASES, InputProblem, Strict
+from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, Strict
+from linkbudget.config.ranges import RANGES, mode_size_problem
 from linkbudget.physics import atmosphere, flux, gaussian
 from linkbudget.segments.base import (
-    AngleSpread,
-    LengthSpread,
     Mode,
-    PositiveAngleSpread,
-    PositiveLengthSpread,
+    OffsetSpread,
     Row,
+    TiltSpread,
+    length_spread,
+    spread,
 )
 from linkbudget.segments.coupling import aperture_losses_db, coupling_losses_db
 from linkbudget.segments.medium import Bulk, absorption_coefficient_per_m
@@ -41,8 +42,8 @@ class Beam(Strict):
     """The beam launched into a gap: its ``waist`` radius at the gap's start (1/e² intensity), or
     the far-field ``divergence`` half-angle of a collimated source (its waist is then λ/(π·n·θ))."""
 
-    waist: PositiveLengthSpread | None = None
-    divergence: PositiveAngleSpread | None = None
+    waist: length_spread("beam waist") | None = None
+    divergence: spread("angle", bounds=RANGES["beam divergence"]) | None = None
 
     @model_validator(mode="after")
     def _one(self):
@@ -64,13 +65,14 @@ class Gap(Bulk):
     """A free-space gap of ``length`` through an ambient medium (``material``/``index``; default air)."""
 
     kind: Literal["gap"]
-    length: LengthSpread
-    visibility: PositiveLengthSpread | None = None
+    index: DielectricIndex | None = None
+    length: length_spread("gap length")
+    visibility: length_spread("visibility") | None = None
     visibility_model: Literal["kim", "kruse"] = "kim"
     beam: Beam | None = None
-    aperture: PositiveLengthSpread | None = None
-    offset: LengthSpread | None = None
-    tilt: AngleSpread | None = None
+    aperture: length_spread("aperture diameter") | None = None
+    offset: OffsetSpread | None = None
+    tilt: TiltSpread | None = None
 
     @model_validator(mode="after")
     def _forms(self):
@@ -82,6 +84,10 @@ class Gap(Bulk):
         return self
 
     def resolve(self, wavelength_m, files):
+        waist = None if self.beam is None else self.beam.waist
+        message = None if waist is None else mode_size_problem(2 * waist.low, wavelength_m)
+        if message is not None:
+            raise InputProblem(("beam", "waist"), f"the beam's waist is a radius, half its diameter: {message}")
         if self.index is None and self.material is None:
             return self.model_copy(update={"material": "air"}).resolve(wavelength_m, files)
         return super().resolve(wavelength_m, files)

@@ -11,16 +11,19 @@ from typing import ClassVar, Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import InputProblem, number, quantity
+from linkbudget.config.fields import ComplexIndex, InputProblem, number, quantity
+from linkbudget.config.ranges import RANGES
 from linkbudget.physics import fiber, flux
 from linkbudget.segments.base import (
     SPREAD_ENDS,
     AbsorptionSpread,
-    AttenuationSpread,
+    BulkAttenuationSpread,
     KappaSpread,
-    LengthSpread,
     Mode,
-    PositiveLengthSpread,
+    ModeFieldDiameterSpread,
+    attenuation_spread,
+    check_mode_sizes,
+    length_spread,
 )
 from linkbudget.segments.optics import OpticalSegment
 
@@ -68,11 +71,11 @@ class Fiber(OpticalSegment):
     """
 
     kind: Literal["fiber"]
-    length: LengthSpread
-    attenuation: AttenuationSpread
-    mode_field_diameter: PositiveLengthSpread | None = None
-    core_diameter: quantity("length", strictly_positive=True) | None = None
-    numerical_aperture: number(strictly_positive=True) | None = None
+    length: length_spread("fibre length")
+    attenuation: attenuation_spread("fibre attenuation")
+    mode_field_diameter: ModeFieldDiameterSpread | None = None
+    core_diameter: quantity("length", bounds=RANGES["core diameter"]) | None = None
+    numerical_aperture: number(bounds=RANGES["numerical aperture"]) | None = None
 
     @model_validator(mode="after")
     def _one_mode_description(self):
@@ -81,7 +84,16 @@ class Fiber(OpticalSegment):
         if (self.core_diameter is None) != (self.numerical_aperture is None):
             missing = "numerical_aperture" if self.numerical_aperture is None else "core_diameter"
             raise InputProblem((), f"core geometry needs both core_diameter and numerical_aperture; add {missing}")
+        if self.numerical_aperture is not None and self.index is not None and (
+                self.numerical_aperture >= self.index.real):
+            raise InputProblem(("numerical_aperture",), "numerical aperture must be below the core index and at "
+                               f"most 1: NA = sqrt(n_core² - n_cladding²) < n_core = {self.index.real:g}; "
+                               f"got {self.numerical_aperture:g}")
         return self
+
+    def resolve(self, wavelength_m, base_dir):
+        check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter}, wavelength_m)
+        return super().resolve(wavelength_m, base_dir)
 
     def mode(self, wavelength_m):
         """The fundamental mode: the datasheet mode field diameter (the same at every wavelength),
@@ -109,7 +121,7 @@ class Bulk(OpticalSegment):
 
     kappa: KappaSpread | None = None
     absorption: AbsorptionSpread | None = None
-    attenuation: AttenuationSpread | None = None
+    attenuation: BulkAttenuationSpread | None = None
 
     def _check_bulk_forms(self):
         forms = [key for key in _BULK_FORMS if getattr(self, key) is not None]
@@ -150,8 +162,9 @@ class Medium(Bulk):
     parallel_faces: ClassVar[bool] = True
 
     kind: Literal["medium"]
-    thickness: LengthSpread | None = None
-    length: LengthSpread | None = None
+    index: ComplexIndex | None = None
+    thickness: length_spread("medium thickness") | None = None
+    length: length_spread("medium thickness") | None = None
     multiple_reflections: bool = False
 
     @model_validator(mode="after")

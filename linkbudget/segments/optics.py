@@ -10,17 +10,14 @@ from typing import Literal
 import numpy as np
 from pydantic import PrivateAttr, model_validator
 
-from linkbudget.config.fields import CASES, ComplexIndex, InputProblem, quantity
+from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, quantity
+from linkbudget.config.ranges import RANGES
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, catalog_names, load_material
 from linkbudget.paths import PathRefused
 from linkbudget.segments.base import Row, SegmentSpec
 
 Polarization = Literal["s", "p", "unpolarized"]
-
-#: Largest angle of incidence accepted [rad] (grazing incidence carries no flux).
-MAX_ANGLE_RAD = np.deg2rad(89.0)
-
 
 def resolve_index(index, material, wavelength_m, files, key_path=()):
     """The complex index over the wavelength axis from an ``index`` or a ``material`` key.
@@ -64,9 +61,9 @@ class OpticalSegment(SegmentSpec):
     the light keeps the s and p shares the faces before left it with (unpolarized at the start).
     """
 
-    index: ComplexIndex | None = None
+    index: DielectricIndex | None = None
     material: str | None = None
-    angle: quantity("angle", minimum=0.0) | None = None
+    angle: quantity("angle", bounds=RANGES["angle of incidence"]) | None = None
     polarization: Polarization | None = None
     _index: np.ndarray | None = PrivateAttr(default=None)
 
@@ -74,8 +71,6 @@ class OpticalSegment(SegmentSpec):
     def _one_medium(self):
         if self.index is not None and self.material is not None:
             raise InputProblem(("material",), "give index or material, not both")
-        if self.angle is not None and self.angle > MAX_ANGLE_RAD:
-            raise InputProblem(("angle",), "angle of incidence must be below 89 deg")
         return self
 
     def resolve(self, wavelength_m, files):

@@ -16,8 +16,9 @@ from typing import Annotated, Literal
 from pydantic import BeforeValidator, Field, model_validator
 
 from linkbudget.config.fields import InputProblem, integer
+from linkbudget.config.ranges import RANGES
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
-from linkbudget.segments.base import LossSpread, SegmentSpec, flat_over_wavelength
+from linkbudget.segments.base import ExcessLossSpread, SegmentSpec, flat_over_wavelength
 
 _NUMBER = r"[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?"
 _RATIO = re.compile(rf"^\s*(?P<a>{_NUMBER})\s*(/\s*(?P<b>{_NUMBER})\s*)?$")
@@ -62,10 +63,10 @@ class Splitter(SegmentSpec):
     """
 
     kind: Literal["splitter"]
-    ports: integer(minimum=1) | None = None
+    ports: integer(bounds=RANGES["splitter ports"]) | None = None
     ratio: SplitRatio | None = None
-    port: integer(minimum=1) | None = None
-    excess_loss: LossSpread = Field(default="0 dB", validate_default=True)
+    port: integer(bounds=RANGES["splitter port"]) | None = None
+    excess_loss: ExcessLossSpread = Field(default="0 dB", validate_default=True)
 
     @model_validator(mode="after")
     def _one_of_each(self):
@@ -73,6 +74,13 @@ class Splitter(SegmentSpec):
             raise ValueError("give ports (an equal 1xN split, e.g. ports: 8) or ratio (a tap, e.g. ratio: 2/98)")
         if self.ports is not None and self.ratio is not None:
             raise InputProblem(("ratio",), "give ports or ratio, not both")
+        if self.ratio is not None:
+            shares = (self.ratio[0] / sum(self.ratio), self.ratio[1] / sum(self.ratio)) if isinstance(
+                self.ratio, tuple) else (self.ratio,)
+            for share in shares:
+                message = RANGES["port share"].problem(share)
+                if message is not None:
+                    raise InputProblem(("ratio",), message)
         if self.port is None:
             return self
         if self.ports is not None and self.port > self.ports:

@@ -19,15 +19,17 @@ from typing import Literal
 
 from pydantic import model_validator
 
-from linkbudget.config.fields import ComplexIndex, InputProblem, Strict, integer
+from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, integer
+from linkbudget.config.ranges import RANGES
 from linkbudget.physics import flux
 from linkbudget.segments.base import (
-    AttenuationSpread,
-    LengthSpread,
-    LossSpread,
+    JointLossSpread,
     Mode,
-    PositiveLengthSpread,
+    ModeFieldDiameterSpread,
+    attenuation_spread,
+    check_mode_sizes,
     flat_over_wavelength,
+    length_spread,
 )
 from linkbudget.segments.medium import absorption_coefficient_per_m
 from linkbudget.segments.optics import OpticalSegment
@@ -36,8 +38,8 @@ from linkbudget.segments.optics import OpticalSegment
 class CountedLoss(Strict):
     """``count`` identical features (bends, crossings), each with insertion ``loss``."""
 
-    count: integer(minimum=0)
-    loss: LossSpread
+    count: integer(bounds=RANGES["feature count"])
+    loss: JointLossSpread
 
     def loss_db(self, case):
         """Total loss of the features [dB] for a budget case."""
@@ -47,8 +49,8 @@ class CountedLoss(Strict):
 class ModeSize(Strict):
     """A rectangular guide's mode: 1/e² intensity mode-field diameters along x and y."""
 
-    width: PositiveLengthSpread
-    height: PositiveLengthSpread
+    width: ModeFieldDiameterSpread
+    height: ModeFieldDiameterSpread
 
 
 class Waveguide(OpticalSegment):
@@ -64,12 +66,12 @@ class Waveguide(OpticalSegment):
     """
 
     kind: Literal["waveguide"]
-    length: LengthSpread
-    attenuation: AttenuationSpread | None = None
-    effective_index: ComplexIndex | None = None
+    length: length_spread("waveguide length")
+    attenuation: attenuation_spread("waveguide attenuation") | None = None
+    effective_index: DielectricIndex | None = None
     bends: CountedLoss | None = None
     crossings: CountedLoss | None = None
-    mode_field_diameter: PositiveLengthSpread | None = None
+    mode_field_diameter: ModeFieldDiameterSpread | None = None
     mode_size: ModeSize | None = None
 
     @model_validator(mode="after")
@@ -123,6 +125,13 @@ class Waveguide(OpticalSegment):
     def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
         """Sum of :meth:`loss_parts_db`; ``cos_inside`` is ignored (the mode follows the guide)."""
         return sum(self.loss_parts_db(wavelength_m, case).values())
+
+    def resolve(self, wavelength_m, base_dir):
+        size = self.mode_size
+        check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter,
+                          ("mode_size", "width"): None if size is None else size.width,
+                          ("mode_size", "height"): None if size is None else size.height}, wavelength_m)
+        return super().resolve(wavelength_m, base_dir)
 
     def mode(self, wavelength_m):
         if self.mode_field_diameter is not None:

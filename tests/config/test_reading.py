@@ -4,11 +4,10 @@ import os
 
 import pytest
 
-from linkbudget.paths import PathRefused
-
 import linkbudget
 from linkbudget.config.source import load_yaml
 from linkbudget.materials.library import MaterialError, load_material
+from linkbudget.paths import PathRefused
 from linkbudget.yamlread import MAX_FILE_BYTES, MAX_NODES, ReadError, compose, read_text
 from tests.conftest import MINIMAL_LINK
 
