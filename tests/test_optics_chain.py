@@ -549,3 +549,26 @@ def test_guided_fibre_without_index_ends_the_faces():
         {"name": "window", "kind": "medium", "thickness": "1 mm", "material": "fused-silica"},
     ])
     assert [row.kind for row in result.rows] == ["gap", "fiber", "medium"]
+
+
+@pytest.mark.parametrize("angle, polarization", ANGLES)
+def test_coating_row_lossless_round_off_prints_as_zero(angle, polarization):
+    # Lossless films absorb nothing (Born & Wolf); 1 − R − T leaves round-off of order 1e-16,
+    # which is below the documented floor (thinfilm.ABSORPTANCE_FLOOR, README) and must be an
+    # exact 0 in the row and print as "A 0 %", not "A 4.44e-14 %".
+    from linkbudget.report.summary import row_note
+
+    layers = [{"material": "tantalum-pentoxide", "quarter_wave": "1550 nm"},
+              {"index": 2.0, "thickness": "150 nm"},
+              {"material": "magnesium-fluoride", "quarter_wave": "1550 nm"}]
+    coating = row(evaluate(coated_window(layers, angle, polarization), CHANNELS), "AR coating")
+    assert np.all(coating.detail["absorptance"] == 0.0)
+    assert all("A 0 %" in row_note(coating, index) for index in range(len(CHANNELS_M)))
+
+
+def test_coating_row_small_real_absorptance_is_kept():
+    # κ = 1e-6 in a 100 nm layer at normal incidence absorbs about 4πκd/λ·n-ish ≈ 1e-6 of the
+    # power (flux law, order of magnitude): far above the floor, so it must not be zeroed.
+    layers = [{"index": "1.5+1e-6j", "thickness": "100 nm"}]
+    coating = row(evaluate(coated_window(layers, None, "unpolarized"), CHANNELS), "AR coating")
+    assert np.all(coating.detail["absorptance"] > 1e-7)
