@@ -199,6 +199,42 @@ def _joint_faces(upstream, segment, joint, coating, wavelength_m, angle_rad, sha
     return _face(upstream.segment.name, segment.name, n_up, n_down, angle_rad, share, need_back)
 
 
+#: Index of the air around a lone window (a ``medium`` with no medium on either side). Air's
+#: n − 1 ≈ 2.7e-4 in the near infrared (Ciddor 1996) changes a face's reflectance by about 0.1 %
+#: of itself (< 0.0002 dB); n = 1 holds at every wavelength the tool accepts, catalog air only
+#: over 230–1690 nm.
+SURROUNDING_INDEX = 1.0
+
+
+@dataclass(frozen=True)
+class _Surroundings:
+    """The air around a lone window, standing in for a segment at its two faces."""
+
+    index: np.ndarray
+    name: str = "air"
+
+    def medium_index(self):
+        return self.index
+
+
+def _lone_windows(segments):
+    """For each segment: it is a window (a ``medium``, parallel faces) with no segment carrying a
+    medium before or after it in its run of faces (joints and elements pass the run on), and no
+    fibre, waveguide or splitter directly against it (a guide it touches is what lies on that side,
+    its face unknown)."""
+    def alone(run):
+        for step, neighbour in enumerate(run):
+            if neighbour.medium_index() is not None:
+                return False
+            if not (neighbour.passes_faces or neighbour.is_coating):
+                return step > 0
+        return True
+
+    return [segment.parallel_faces and segment.medium_index() is not None
+            and alone(reversed(segments[:position])) and alone(segments[position + 1:])
+            for position, segment in enumerate(segments)]
+
+
 def _multiple_reflections_row(carrier, exit_reflectance, share):
     """The incoherent sum of the light bouncing between a medium's two faces, as a (negative) loss.
 
@@ -259,17 +295,34 @@ def budget_rows(segments, wavelength_m):
     """
     notes = [f"{segment.name}: {note}" for segment in segments for note in segment_notes(segment)]
     modes = [_noted(notes, segment.name, segment.mode, wavelength_m) for segment in segments]
+    lone = _lone_windows(segments)
     rows, upstream, joint, coating = [], None, None, None
     for position, segment in enumerate(segments):
         around = {"mode_before": modes[position - 1] if position else None,
                   "mode_after": modes[position + 1] if position + 1 < len(segments) else None}
         upstream, joint, coating = _noted(notes, segment.name, _add_segment_rows, rows, segment, around,
-                                          wavelength_m, upstream, joint, coating)
+                                          wavelength_m, upstream, joint, coating, lone[position])
     return tuple(rows), tuple(notes)
 
 
-def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating):
-    """Append the rows of ``segment`` (and the faces before it); return the new state."""
+def _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle, share):
+    """Append the faces between the medium of ``upstream`` and that of ``segment`` (and the sum of
+    the multiple reflections in ``upstream``); return the shares after them and the back-
+    reflectance of the last face."""
+    joint_rows, share, reflectance, back_reflectance = _joint_faces(
+        upstream, segment, joint, coating, wavelength_m, angle, share)
+    rows.extend(joint_rows)
+    if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
+        reflections, share = _multiple_reflections_row(upstream, reflectance, share)
+        rows.append(reflections)
+    return share, back_reflectance
+
+
+def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating, lone=False):
+    """Append the rows of ``segment`` (and the faces before it); return the new state.
+
+    A ``lone`` window has its two faces to the air around it (:data:`SURROUNDING_INDEX`).
+    """
     if segment.is_coating:
         return upstream, joint, segment
     index = segment.medium_index()
@@ -281,15 +334,13 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     back_reflectance, angle = None, 0.0
     polarization = segment.polarization or "unpolarized"
     share = _stated_share(polarization)
+    surroundings = _Surroundings(np.full(np.shape(wavelength_m), SURROUNDING_INDEX, dtype=complex)) if lone else None
+    if lone:
+        upstream, joint, coating = _Carrier(surroundings, 0.0, share, None, None), None, None
     if upstream is not None:
         angle = upstream.exit_angle_rad if segment.angle is None else segment.angle
         share = upstream.share if segment.polarization is None else share
-        joint_rows, share, reflectance, back_reflectance = _joint_faces(
-            upstream, segment, joint, coating, wavelength_m, angle, share)
-        rows.extend(joint_rows)
-        if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
-            reflections, share = _multiple_reflections_row(upstream, reflectance, share)
-            rows.append(reflections)
+        share, back_reflectance = _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle, share)
     n_before = index if upstream is None else upstream.segment.medium_index()
     # a tilt carries on through media in contact (their faces are parallel to the tilted one);
     # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
@@ -299,6 +350,9 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     rows.append(bulk)
     upstream = _Carrier(segment, inside, share, back_reflectance,
                         bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
+    if lone:
+        _faces_between(rows, upstream, surroundings, None, None, wavelength_m, inside, share)
+        return None, None, None
     return upstream, None, None
 
 

@@ -549,3 +549,81 @@ def test_guided_fibre_without_index_ends_the_faces():
         {"name": "window", "kind": "medium", "thickness": "1 mm", "material": "fused-silica"},
     ])
     assert [row.kind for row in result.rows] == ["gap", "fiber", "medium"]
+
+
+@pytest.mark.parametrize("angle, polarization", ANGLES)
+def test_coating_row_lossless_round_off_prints_as_zero(angle, polarization):
+    # Lossless films absorb nothing (Born & Wolf); 1 − R − T leaves round-off of order 1e-16,
+    # which is below the documented floor (thinfilm.ABSORPTANCE_FLOOR, README) and must be an
+    # exact 0 in the row and print as "A 0 %", not "A 4.44e-14 %".
+    from linkbudget.report.summary import row_note
+
+    layers = [{"material": "tantalum-pentoxide", "quarter_wave": "1550 nm"},
+              {"index": 2.0, "thickness": "150 nm"},
+              {"material": "magnesium-fluoride", "quarter_wave": "1550 nm"}]
+    coating = row(evaluate(coated_window(layers, angle, polarization), CHANNELS), "AR coating")
+    assert np.all(coating.detail["absorptance"] == 0.0)
+    assert all("A 0 %" in row_note(coating, index) for index in range(len(CHANNELS_M)))
+
+
+def test_coating_row_small_real_absorptance_is_kept():
+    # κ = 1e-6 in a 100 nm layer at normal incidence absorbs about 4πκd/λ·n-ish ≈ 1e-6 of the
+    # power (flux law, order of magnitude): far above the floor, so it must not be zeroed.
+    layers = [{"index": "1.5+1e-6j", "thickness": "100 nm"}]
+    coating = row(evaluate(coated_window(layers, None, "unpolarized"), CHANNELS), "AR coating")
+    assert np.all(coating.detail["absorptance"] > 1e-7)
+
+
+# ---- a lone window has its faces to the air around it ----
+
+
+def test_lone_window_has_two_faces_to_air_closed_form():
+    # A window between fibre connectors (no medium on either side) is surrounded by air, taken as
+    # n = 1 (README): two faces with R = ((n − 1)/(n + 1))² each (Fresnel at normal incidence,
+    # Hecht), bulk by the flux law α = 4πκ/λ (Born & Wolf), as in configs/quarry-uplink.yaml.
+    n, kappa, thickness_m, wavelength_m = 1.447, 3.0e-8, 3e-3, 1310e-9
+    chain = [{"name": "lead", "kind": "fiber", "length": "3 m", "attenuation": "0.4 dB/km"},
+             {"name": "panel", "kind": "connector", "loss": "0.3 dB"},
+             {"name": "window", "kind": "medium", "thickness": "3 mm", "index": f"{n}+{kappa}j"},
+             {"name": "allowance", "kind": "element", "loss": "1 dB"}]
+    result = evaluate(chain, "wavelength: 1310 nm")
+    names = [r.name for r in result.rows]
+    assert names == ["lead", "panel", "air → window", "window", "window → air", "allowance"]
+    r_face = ((n - 1) / (n + 1)) ** 2
+    for name in ("air → window", "window → air"):
+        face = row(result, name)
+        assert_allclose(face.detail["reflectance"], [r_face], rtol=1e-12)
+        assert_allclose(face.loss_db["typ"], [loss_db(1 - r_face)], rtol=1e-12)
+    bulk = 10 * np.log10(np.e) * 4 * np.pi * kappa / wavelength_m * thickness_m
+    assert_allclose(row(result, "window").loss_db["typ"], [bulk], rtol=1e-12)
+
+
+def test_lone_window_in_shipped_quarry_example_is_not_zero():
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parents[1] / "configs" / "quarry-uplink.yaml").read_text()
+    result = linkbudget.evaluate(linkbudget.load(text))
+    r_face = ((1.447 - 1) / (1.447 + 1)) ** 2  # Fresnel, normal incidence (Hecht): 3.337 %
+    faces = [r for r in result.rows if r.kind == "interface"]
+    assert [f.name for f in faces] == ["air → receiver enclosure window", "receiver enclosure window → air"]
+    assert_allclose([f.loss_db["typ"][0] for f in faces], [loss_db(1 - r_face)] * 2, rtol=1e-12)
+
+
+def test_lone_window_with_multiple_reflections_matches_inc_tmm():
+    # The lone window's two air faces and its bulk, summed incoherently, equal tmm.inc_tmm for
+    # air | window (incoherent) | air at normal incidence (thicknesses in nm, like the wavelength).
+    n = complex(1.5, 2e-6)
+    chain = [{"name": "window", "kind": "medium", "thickness": "2 mm", "index": f"{n.real}+{n.imag}j",
+              "multiple_reflections": True}]
+    result = evaluate(chain)
+    expected = tmm.inc_tmm("s", [1.0, n, 1.0], [np.inf, 2e6, np.inf], ["i", "i", "i"], 0.0,
+                           1550.0)["T"]
+    assert_allclose(total_transmittance(result), [expected], rtol=0, atol=TIGHT)
+
+
+def test_window_touching_a_guide_gets_no_air_faces():
+    # A medium directly against a waveguide without a medium of its own: the face there is not
+    # known, so the window is not lone and no air face is invented.
+    chain = [{"name": "cladding", "kind": "medium", "thickness": "1 mm", "index": 1.5},
+             {"name": "chip", "kind": "waveguide", "length": "1 cm", "attenuation": "1 dB/cm"}]
+    assert [r.kind for r in evaluate(chain).rows] == ["medium", "waveguide"]

@@ -105,6 +105,17 @@ def v_number(core_radius_m, wavelength_m, *, numerical_aperture=None, n_core=Non
     return 2.0 * np.pi * core_radius_m * aperture / positive(wavelength_m, "wavelength")
 
 
+def _warn_if_multimode(v):
+    """Warn (ValidityWarning) where V is above the LP11 cut-off: LP11 is guided too [1]_."""
+    if np.any(v > LP11_CUTOFF_V):
+        warnings.warn(
+            f"V up to {v.max():.4g} is above the LP11 cut-off {LP11_CUTOFF_V:.4f}: the fibre is not "
+            "single-mode there (higher modes are guided too; only the fundamental mode is modelled)",
+            ValidityWarning,
+            stacklevel=4,
+        )
+
+
 def _warn_outside(v, low, high, what):
     if np.any((v < low) | (v > high)):
         warnings.warn(
@@ -122,7 +133,8 @@ def marcuse_mode_field_radius_m(core_radius_m, v):
     core_radius_m : array_like
         Core radius a [m].
     v : array_like
-        V number; warns with :class:`ValidityWarning` outside 1.2 ≤ V ≤ 2.4.
+        V number; warns with :class:`ValidityWarning` outside 1.2 ≤ V ≤ 2.4, and separately
+        above the LP11 cut-off 2.405, where the fibre is not single-mode.
 
     Returns
     -------
@@ -141,6 +153,7 @@ def marcuse_mode_field_radius_m(core_radius_m, v):
     """
     v = positive(v, "V number")
     _warn_outside(v, *MARCUSE_VALID_V, "Marcuse's mode-field formula")
+    _warn_if_multimode(v)
     # Marcuse's fit of w/a [1] (equation number not confirmed)
     return positive(core_radius_m, "core radius") * (0.65 + 1.619 * v**-1.5 + 2.879 * v**-6)
 
@@ -172,12 +185,7 @@ def mode_field_diameter_m(core_radius_m, wavelength_m, *, numerical_aperture=Non
 
 def _lp01_v(v):
     v = positive(v, "V number")
-    if np.any(v > LP11_CUTOFF_V):
-        warnings.warn(
-            f"V = {v.max():.4g} is above the LP11 cut-off {LP11_CUTOFF_V:.4f}: the fibre is not single-mode",
-            ValidityWarning,
-            stacklevel=3,
-        )
+    _warn_if_multimode(v)
     return v
 
 

@@ -32,6 +32,12 @@ from linkbudget.physics.fresnel import (
     _warn_if_absorbing_incident,
 )
 
+#: Absorptances 1 − R − T smaller than this in magnitude are round-off and are returned as 0: a
+#: lossless stack leaves a few 1e-16 (double-precision eps ≈ 2.2e-16 per operation), a thousand
+#: times below this floor, and any absorber that matters to a budget (1e-12 is 4e-12 dB) lies
+#: far above it.
+ABSORPTANCE_FLOOR = 1e-12
+
 
 @dataclass(frozen=True)
 class StackResponse:
@@ -50,8 +56,10 @@ class StackResponse:
 
     @property
     def absorptance(self):
-        """Absorptance A = 1 − R − T (power absorbed in the layers), shape (n_wavelengths,)."""
-        return 1.0 - self.reflectance - self.transmittance
+        """Absorptance A = 1 − R − T (power absorbed in the layers), shape (n_wavelengths,);
+        0 where |A| < :data:`ABSORPTANCE_FLOOR` (round-off of a lossless stack)."""
+        absorptance = 1.0 - self.reflectance - self.transmittance
+        return np.where(np.abs(absorptance) < ABSORPTANCE_FLOOR, 0.0, absorptance)
 
 
 def _wavelength_axis(wavelength_m):
