@@ -94,13 +94,21 @@ def number(*, minimum=None, strictly_positive=False):
     return Annotated[float, BeforeValidator(parse)]
 
 
+#: Largest count a link file may give (splices, bends, crossings, ports, quarter waves): beyond it
+#: a count can only be a typing error, and a larger integer leaves the range of the float and
+#: 64-bit integer arithmetic it enters (common practice bound, generous for any real link).
+MAX_COUNT = 1_000_000
+
+
 def integer(*, minimum=None):
-    """An annotated int field for a count."""
+    """An annotated int field for a count, at most :data:`MAX_COUNT`."""
     def parse(value):
         if isinstance(value, bool) or not isinstance(value, int):
             raise ValueError(f"expected a whole number, got {value!r}")
         if minimum is not None and value < minimum:
             raise ValueError(f"must be >= {minimum}")
+        if value > MAX_COUNT:
+            raise ValueError(f"must be <= {MAX_COUNT}")
         return value
 
     return Annotated[int, BeforeValidator(parse)]
