@@ -95,6 +95,12 @@ CASES = [
          "source: |[0 dBm]", "source", ("expected a mapping of keys",)),
     Case("string-where-count", append("  - kind: splice\n    loss: 0.1 dB\n    count: many\n"),
          "count: |many", "chain[2].count", ("expected a whole number", "'many'")),
+    # found by the fuzz test: a count beyond float range raised OverflowError in the splice's loss,
+    # ports beyond int64 a ValueError in the split loss (tests/data/fuzz/huge-count--*.yaml)
+    Case("huge-count", append("  - kind: splice\n    loss: 0.1 dB\n    count: " + "9" * 400 + "\n"),
+         "count: |" + "9" * 400, "chain[2].count", ("splice count must be from 1 to", "got a 400-digit number")),
+    Case("huge-ports", append("  - kind: splitter\n    ports: 83333333333333333333\n"),
+         "ports: |83333333333333333333", "chain[2].ports", ("got a 20-digit number",)),
     Case("chain-item-not-a-mapping", append("  - just some text\n"),
          "  - |just some text", "chain[2]", ("a chain item must be a mapping",)),
     Case("normal-spread-reaching-zero", append(
