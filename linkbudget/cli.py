@@ -37,11 +37,12 @@ def _fail_input(message):
     raise typer.Exit(EXIT_INPUT)
 
 
-def _load(path):
+def _evaluated(path, required_margin_db):
     from linkbudget.config import ConfigError, load_link
+    from linkbudget.engine import evaluate
 
     try:
-        return load_link(path)
+        return evaluate(load_link(path), required_margin_db=required_margin_db)
     except ConfigError as error:
         _fail_input(str(error))
 
@@ -112,10 +113,7 @@ def run(
     ] = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict."""
-    from linkbudget.engine import evaluate
-
-    required = _margin_override(min_margin)
-    result = evaluate(_load(link), required_margin_db=required)
+    result = _evaluated(link, _margin_override(min_margin))
     _emit(result, output_format, output, force, protected=[link])
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 

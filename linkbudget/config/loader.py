@@ -27,6 +27,7 @@ class Link:
     spec: LinkSpec
     segments: tuple
     file: str
+    positions: object = None  # where each key path was written, to place evaluation errors
 
 
 def _model_at(model, loc):
@@ -188,7 +189,7 @@ def parse_link(text, file="<string>", base_dir=None):
                     for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file)
+    return Link(spec, tuple(segments), file, positions)
 
 
 def load_link(path):

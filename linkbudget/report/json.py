@@ -43,6 +43,8 @@ def segment_dict(result, index):
         "cumulative_loss_db": _by_case(result.cumulative_loss_db, index),
         "power_after_dbm": _by_case(result.power_after_dbm, index),
         **{key: _detail(value) for key, value in row.detail.items()},
+        **({"total_internal_reflection": [bool(value) for value in result.total_internal_reflection[index]]}
+           if result.total_internal_reflection[index].any() else {}),
     }
 
 
