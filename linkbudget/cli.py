@@ -16,8 +16,14 @@ from linkbudget.messages import format_hint
 
 EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
 
+#: The exit codes as the help text states them (README "Commands" says the same).
+EXIT_HELP = ("Exit status: 0 the link closes (every link, for check) or the command succeeded; "
+             "1 a link does not meet its margin or exceeds the receiver overload; "
+             "2 the input is wrong (the message names file, line, column and key); "
+             "3 an internal error, a bug: please report it.")
+
 app = typer.Typer(
-    help="Optical link budgets from physics and datasheets, kept as YAML.",
+    help="Optical link budgets from physics and datasheets, kept as YAML.\n\n" + EXIT_HELP,
     no_args_is_help=True,
     add_completion=False,
     pretty_exceptions_enable=False,
@@ -112,7 +118,10 @@ def run(
         str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
 ):
-    """Print the budget of one link: every segment, received power, margins, verdict."""
+    """Print the budget of one link: every segment, received power, margins, verdict.
+
+    Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
+    """
     result = _evaluated(link, _margin_override(min_margin))
     _emit(result, output_format, output, force, protected=[link])
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
@@ -145,10 +154,13 @@ def check(
         "--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes."""
+    """The CI gate: one line per link, exit 0 only if every link closes.
+
+    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    """
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
-    from linkbudget.report.summary import check_line, check_summary
+    from linkbudget.report.summary import check_error_line, check_line, check_summary
 
     required = _margin_override(min_margin)
     closes = fails = broken = 0
@@ -157,7 +169,7 @@ def check(
             result = evaluate(load_link(path), required_margin_db=required)
         except ConfigError as error:
             broken += 1
-            typer.echo(f"ERROR  {path}: input error", err=False)
+            typer.echo(check_error_line(path), err=False)
             typer.echo(str(error), err=True)
             continue
         typer.echo(check_line(result, path))

@@ -42,6 +42,9 @@ class LinkResult:
     overload_dbm: float | None
     required_margin_db: float
     notes: tuple = ()  # warnings of models used outside their stated validity, by row
+    description: str | None = None  # the link's own words, as written
+    source_name: str | None = None
+    receiver_name: str | None = None
     cautions: tuple = CAUTIONS
 
     @cached_property
@@ -371,6 +374,9 @@ def evaluate(link, *, required_margin_db=None):
     receiver = spec.receiver
     result = LinkResult(
         title=spec.title,
+        description=spec.description,
+        source_name=spec.source.name,
+        receiver_name=receiver.name,
         file=link.file,
         wavelength_m=wavelength_m,
         rows=rows,
