@@ -16,8 +16,14 @@ from linkbudget.messages import format_hint
 
 EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
 
+#: The exit codes as the help text states them (README "Commands" says the same).
+EXIT_HELP = ("Exit status: 0 the link closes (every link, for check) or the command succeeded; "
+             "1 a link does not meet its margin or exceeds the receiver overload; "
+             "2 the input is wrong (the message names file, line, column and key); "
+             "3 an internal error, a bug: please report it.")
+
 app = typer.Typer(
-    help="Optical link budgets from physics and datasheets, kept as YAML.",
+    help="Optical link budgets from physics and datasheets, kept as YAML.\n\n" + EXIT_HELP,
     no_args_is_help=True,
     add_completion=False,
     pretty_exceptions_enable=False,
@@ -43,11 +49,14 @@ def _fail_input(message):
     raise typer.Exit(EXIT_INPUT)
 
 
-def _load(path, allow_paths):
+def _evaluated(path, allow_paths, required_margin_db):
+    """The loaded link and its result; an input error in either exits 2 with its placed message."""
     from linkbudget.config import ConfigError, load_link
+    from linkbudget.engine import evaluate
 
     try:
-        return load_link(path, allow_paths)
+        loaded = load_link(path, allow_paths)
+        return loaded, evaluate(loaded, required_margin_db=required_margin_db)
     except ConfigError as error:
         _fail_input(str(error))
 
@@ -118,12 +127,11 @@ def run(
     ] = None,
     allow_path: AllowPath = None,
 ):
-    """Print the budget of one link: every segment, received power, margins, verdict."""
-    from linkbudget.engine import evaluate
+    """Print the budget of one link: every segment, received power, margins, verdict.
 
-    required = _margin_override(min_margin)
-    loaded = _load(link, allow_path or ())
-    result = evaluate(loaded, required_margin_db=required)
+    Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
+    """
+    loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
     _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
@@ -156,10 +164,13 @@ def check(
     ] = None,
     allow_path: AllowPath = None,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes."""
+    """The CI gate: one line per link, exit 0 only if every link closes.
+
+    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    """
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
-    from linkbudget.report.summary import check_line, check_summary
+    from linkbudget.report.summary import check_error_line, check_line, check_summary
 
     required = _margin_override(min_margin)
     closes = fails = broken = 0
@@ -168,7 +179,7 @@ def check(
             result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
         except ConfigError as error:
             broken += 1
-            typer.echo(f"ERROR  {path}: input error", err=False)
+            typer.echo(check_error_line(path), err=False)
             typer.echo(str(error), err=True)
             continue
         typer.echo(check_line(result, path))

@@ -20,6 +20,7 @@ import numpy as np
 from linkbudget.cautions import CAUTIONS
 from linkbudget.config.fields import CASES, range_notes
 from linkbudget.config.ranges import index_notes
+from linkbudget.config.source import ConfigError, Problem
 from linkbudget.physics import fresnel, thinfilm
 from linkbudget.physics.decibel import (
     loss_db_from_transmittance,
@@ -42,6 +43,9 @@ class LinkResult:
     overload_dbm: float | None
     required_margin_db: float
     notes: tuple = ()  # warnings of models used outside their stated validity, by row
+    description: str | None = None  # the link's own words, as written
+    source_name: str | None = None
+    receiver_name: str | None = None
     cautions: tuple = CAUTIONS
 
     @cached_property
@@ -51,8 +55,11 @@ class LinkResult:
 
     @cached_property
     def cumulative_loss_db(self):
-        """case -> cumulative loss after every row, shape (n_rows, n_wavelengths)."""
-        return {case: np.cumsum(losses, axis=0) for case, losses in self.loss_db.items()}
+        """case -> cumulative loss after every row, shape (n_rows, n_wavelengths); +inf from a row
+        of total internal reflection on (whatever the rows after it, which no light reaches)."""
+        blocked = np.logical_or.accumulate(self.total_internal_reflection, axis=0)
+        with np.errstate(invalid="ignore"):
+            return {case: np.where(blocked, np.inf, np.cumsum(losses, axis=0)) for case, losses in self.loss_db.items()}
 
     @cached_property
     def power_after_dbm(self):
@@ -79,6 +86,15 @@ class LinkResult:
     def overload_ok(self):
         """The best-case received power stays at or below the overload (if one is given)."""
         return self.overload_dbm is None or bool(np.all(self.received_dbm["best"] <= self.overload_dbm))
+
+    @cached_property
+    def total_internal_reflection(self):
+        """Mask (n_rows, n_wavelengths): the row is a face or coating that reflects all the light
+        (total internal reflection), so its loss is +inf. The only non-finite values a result holds
+        are this loss and the values after it at that wavelength (no light reaches them)."""
+        reflectance = np.array([row.detail.get("reflectance", np.zeros(self.wavelength_m.shape))
+                                for row in self.rows], dtype=float).reshape(len(self.rows), -1)
+        return np.isposinf(self.loss_db["typ"]) & (reflectance >= 1 - 1e-9)
 
     @property
     def closes(self):
@@ -356,6 +372,48 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     return upstream, None, None
 
 
+def _row_segments(rows, segments):
+    """The chain index each row belongs to: a segment's own row to it, a multiple-reflection row to
+    its medium (the last segment before it), an inserted face to the segment after it."""
+    owners, pending, position = [], [], 0
+    for number, row in enumerate(rows):
+        if row.kind == "interface":
+            pending.append(number)
+        elif row.kind != "reflections":
+            position = next((i for i in range(position, len(segments)) if segments[i].name == row.name), position)
+            for face in pending:
+                owners[face] = position
+            pending = []
+        owners.append(position)
+    return owners
+
+
+def _not_finite_problem(result, link):
+    """The placed :class:`Problem` of the first value of ``result`` that is not finite (NaN, an
+    infinite gain, an overflow), or ``None``. Total internal reflection is the one allowed case:
+    it blocks the light, and nothing after it at that wavelength is evaluated."""
+    blocked = np.logical_or.accumulate(result.total_internal_reflection, axis=0)
+    bad = np.zeros(blocked.shape, dtype=bool)
+    for case in CASES:
+        bad |= ~np.isfinite(result.loss_db[case]) & ~blocked
+        bad |= ~np.isfinite(result.power_after_dbm[case]) & ~blocked
+    if not bad.any():
+        return None
+    number, index = (int(i) for i in np.argwhere(bad)[0])
+    row = result.rows[number]
+    values = ", ".join(f"{case} {result.loss_db[case][number, index]:g} dB" for case in CASES)
+    owner = _row_segments(result.rows, link.segments)[number]
+    path = ("chain", owner)
+    mark = None if link.positions is None else link.positions.mark(path)
+    from linkbudget.report.summary import nm
+    from linkbudget.text import escaped
+
+    return Problem(link.file, mark, path,
+                   f"the budget is not finite at {nm(result.wavelength_m[index])}: row '{escaped(row.name)}' "
+                   f"loses {values}; the values are outside what the models can evaluate",
+                   "check the index, thickness and loss values of this segment")
+
+
 def evaluate(link, *, required_margin_db=None):
     """Evaluate a validated link over its wavelength axis.
 
@@ -369,6 +427,12 @@ def evaluate(link, *, required_margin_db=None):
     Returns
     -------
     LinkResult
+
+    Raises
+    ------
+    linkbudget.ConfigError
+        When a loss, power or margin is not finite (NaN, an infinite gain), placed at the segment
+        of the first such row; only total internal reflection may block the light (+inf loss).
     """
     spec = link.spec
     wavelength_m = spec.wavelengths_m()
@@ -378,8 +442,11 @@ def evaluate(link, *, required_margin_db=None):
     power = spec.source.power
     source_dbm = {case: np.full(wavelength_m.shape, power.at(case, larger_hurts=False)) for case in CASES}
     receiver = spec.receiver
-    return LinkResult(
+    result = LinkResult(
         title=spec.title,
+        description=spec.description,
+        source_name=spec.source.name,
+        receiver_name=receiver.name,
         file=link.file,
         wavelength_m=wavelength_m,
         rows=rows,
@@ -389,3 +456,7 @@ def evaluate(link, *, required_margin_db=None):
         overload_dbm=receiver.overload,
         required_margin_db=receiver.required_margin if required_margin_db is None else required_margin_db,
     )
+    problem = _not_finite_problem(result, link)
+    if problem is not None:
+        raise ConfigError([problem])
+    return result

@@ -359,7 +359,8 @@ def test_full_link_total_is_the_sum_of_the_published_models():
     parts = segments["chip"]["loss_parts_db"]
     assert_allclose([parts[p]["typ"][0] for p in ("propagation", "bends", "crossings")], [1.0, 0.2, 0.4], rtol=1e-12)
     assert segments["star"]["port"] == 3
-    assert_allclose(segments["star"]["loss_parts_db"]["split"]["worst"], [10 * np.log10(8)], rtol=1e-12)
+    assert_allclose(segments["star"]["loss_parts_db"]["split"]["worst"], [10 * np.log10(8)],
+                    rtol=0, atol=5e-10)  # the JSON writes dB to 1e-9
 
 
 # ---- errors ----

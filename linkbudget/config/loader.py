@@ -28,6 +28,7 @@ class Link:
     file: str
     #: Resolved paths of the files the link refers to that were read (its material files).
     referenced_files: tuple = ()
+    positions: object = None  # where each key path was written, to place evaluation errors
 
 
 def _model_at(model, loc):
@@ -193,7 +194,7 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
                     for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file, tuple(files.read))
+    return Link(spec, tuple(segments), file, tuple(files.read), positions)
 
 
 def load_link(path, allow_paths=()):

@@ -4,6 +4,18 @@ import csv
 import io
 
 from linkbudget.config.fields import CASES
+from linkbudget.report.summary import wavelength_text
+from linkbudget.text import escaped
+
+#: First characters a spreadsheet reads as a formula (common practice: OWASP "CSV injection").
+_FORMULA_STARTS = ("=", "+", "-", "@")
+
+
+def csv_text(text):
+    """User text for a CSV cell: one line (:func:`linkbudget.text.escaped`), and a leading
+    apostrophe where a spreadsheet would otherwise run the text as a formula."""
+    text = escaped(text)
+    return f"'{text}" if text.startswith(_FORMULA_STARTS) else text
 
 COLUMNS = ["wavelength_nm", "row", "name", "kind"] + [
     f"{quantity}_{case}" for quantity in ("loss_db", "cumulative_loss_db", "power_after_dbm") for case in CASES
@@ -16,8 +28,9 @@ def render(result):
     writer = csv.writer(buffer, lineterminator="\n")
     writer.writerow(COLUMNS)
     quantities = (result.loss_db, result.cumulative_loss_db, result.power_after_dbm)
-    for index, wavelength_m in enumerate(result.wavelength_m):
+    labels = wavelength_text(result.wavelength_m)
+    for index in range(result.wavelength_m.size):
         for number, row in enumerate(result.rows):
             values = [f"{q[case][number, index]:.6g}" for q in quantities for case in CASES]
-            writer.writerow([f"{wavelength_m * 1e9:.6g}", number + 1, row.name, row.kind, *values])
+            writer.writerow([labels[index], number + 1, csv_text(row.name), row.kind, *values])
     return buffer.getvalue()

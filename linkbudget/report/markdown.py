@@ -1,6 +1,26 @@
 """The Markdown report, for a pull-request comment."""
 
-from linkbudget.report.summary import margin_sentence, nm, overload_sentence, row_note, verdict
+from linkbudget.report.summary import (
+    margin_sentence,
+    nm,
+    overload_sentence,
+    parties_sentence,
+    row_note,
+    verdict,
+    wavelength_status,
+)
+from linkbudget.text import escaped
+
+#: Characters Markdown would read as syntax (emphasis, code, links, tables, headings), shown literally.
+_MARKDOWN_SYNTAX = "\\`*_[]#|~"
+#: HTML that a Markdown renderer would pass through, as character references.
+_HTML = {"&": "&amp;", "<": "&lt;", ">": "&gt;"}
+
+
+def markdown_text(text):
+    """User text for Markdown: one line (:func:`linkbudget.text.escaped`), every Markdown syntax
+    character backslash-escaped and HTML written as character references, so it shows as typed."""
+    return "".join(_HTML.get(char, f"\\{char}" if char in _MARKDOWN_SYNTAX else char) for char in escaped(text))
 
 
 def _cell(value):
@@ -11,29 +31,33 @@ def _table(headers, rows, *, text_columns=1):
     """A Markdown table: the first ``text_columns`` left-aligned, the numbers right-aligned."""
     rule = "|".join("---" if i < text_columns else "---:" for i in range(len(headers)))
     lines = ["| " + " | ".join(headers) + " |", f"|{rule}|"]
-    lines += ["| " + " | ".join(cell.replace("|", "\\|") for cell in row) + " |" for row in rows]
+    lines += ["| " + " | ".join(row) + " |" for row in rows]
     return lines
 
 
 def render(result):
     """The report as Markdown text."""
     index = result.governing_index
+    status = wavelength_status(result)
     mark = "✅" if result.closes else "❌"
-    lines = [f"### {mark} {result.title}: {verdict(result)}", "",
-             f"- {margin_sentence(result)}", f"- {overload_sentence(result)}", "",
+    lines = [f"### {mark} {markdown_text(result.title)}: {verdict(result)}", ""]
+    lines += [f"{markdown_text(text)}" for text in (result.description,) if text]
+    parties = parties_sentence(result, markdown_text)
+    lines += [f"- {parties}"] if parties else []
+    lines += [f"- {margin_sentence(result)}", f"- {overload_sentence(result)}", "",
              f"Budget at {nm(result.wavelength_m[index])}:", ""]
     lines += _table(
         ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm", "note"],
-        [[row.name, row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
+        [[markdown_text(row.name), row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
           _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index]),
-          row_note(row, index)]
+          markdown_text(row_note(row, index))]
          for n, row in enumerate(result.rows)], text_columns=2)
     lines += ["", "Margins:", ""]
     lines += _table(
-        ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB"],
+        ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB", "status"],
         [[nm(wavelength), _cell(result.received_dbm["typ"][i]), _cell(result.received_dbm["worst"][i]),
-          _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i])]
+          _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i]), str(status[i])]
          for i, wavelength in enumerate(result.wavelength_m)])
-    lines += [""] + [f"- note: {note}" for note in result.notes]
+    lines += [""] + [f"- note: {markdown_text(note)}" for note in result.notes]
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
     return "\n".join(lines)

@@ -2,9 +2,30 @@
 
 import numpy as np
 
+from linkbudget.text import escaped
+
+#: Resolution of every printed and JSON wavelength [nm]: values closer than this print alike.
+WAVELENGTH_RESOLUTION_NM = 1e-6
+
+
+def _nm_label(wavelength_nm):
+    text = f"{round(float(wavelength_nm), 6):.6f}".rstrip("0").rstrip(".")
+    return "0" if text == "-0" else text
+
+
+def wavelength_text(wavelength_m):
+    """Wavelengths [m] as nm text with the fewest digits that state each exactly to
+    :data:`WAVELENGTH_RESOLUTION_NM` (``1550``, ``1550.116``, ``1550.002``): every digit the user
+    wrote (to 1e-6 nm), so neighbours on an axis never print alike. A list for an array."""
+    values_nm = np.asarray(wavelength_m, dtype=float) * 1e9
+    if values_nm.ndim == 0:
+        return _nm_label(values_nm)
+    return [_nm_label(value) for value in values_nm]
+
 
 def nm(wavelength_m):
-    return f"{wavelength_m * 1e9:.6g} nm"
+    """One wavelength [m] as ``"1550.116 nm"`` (see :func:`wavelength_text`)."""
+    return f"{wavelength_text(wavelength_m)} nm"
 
 
 def _where(result, values, index):
@@ -81,7 +102,25 @@ def row_note(row, index):
         notes.append(f"return loss {detail['return_loss_db']:.1f} dB")
     if detail.get("port") is not None:
         notes.append(f"port {detail['port']}")
+    if detail.get("note"):
+        notes.append(detail["note"])  # the user's own words: each format escapes the whole note
     return "; ".join(notes)
+
+
+def parties_sentence(result, shown=escaped):
+    """``source: NAME; receiver: NAME`` for the names the link gives (each through ``shown``, the
+    format's escaping), or ``""``."""
+    return "; ".join(f"{part}: {shown(name)}" for part, name in (("source", result.source_name),
+                                                                 ("receiver", result.receiver_name)) if name)
+
+
+def wavelength_status(result):
+    """Per wavelength: ``"ok"``, or what fails there (``"SHORT"``, ``"OVERLOAD"``, both)."""
+    short = ~(result.margin_db["worst"] >= result.required_margin_db)
+    over = (np.zeros(short.shape, dtype=bool) if result.overload_dbm is None
+            else ~(result.received_dbm["best"] <= result.overload_dbm))
+    words = np.array(["ok", "SHORT", "OVERLOAD", "SHORT, OVERLOAD"])
+    return words[short.astype(int) + 2 * over.astype(int)]
 
 
 def check_line(result, path):
@@ -90,8 +129,13 @@ def check_line(result, path):
                                           (result.overload_ok, "overload exceeded")) if not ok]
     word = "PASS " if result.closes else "FAIL "
     worst = float(result.margin_db["worst"].min())
-    line = f"{word}  {path}: worst-case margin {worst:+.2f} dB, required {result.required_margin_db:.2f} dB"
+    line = f"{word}  {escaped(path)}: worst-case margin {worst:+.2f} dB, required {result.required_margin_db:.2f} dB"
     return line + (f" ({', '.join(reasons)})" if reasons else "")
+
+
+def check_error_line(path):
+    """The CI gate's line for a link whose input is wrong (the placed errors go to stderr)."""
+    return f"ERROR  {escaped(path)}: input error"
 
 
 def check_summary(count, closes, fails, broken):

@@ -1,6 +1,7 @@
 """The terminal report: a rich table of the budget and its verdict in words.
 
-Colour is an aid only: every status is also written out.
+Colour is an aid only: every status is also written out. User text is always put in a
+:class:`rich.text.Text` (never read as console markup) after :func:`linkbudget.text.escaped`.
 """
 
 import math
@@ -11,7 +12,16 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
-from linkbudget.report.summary import margin_sentence, nm, overload_sentence, row_note, verdict
+from linkbudget.report.summary import (
+    margin_sentence,
+    nm,
+    overload_sentence,
+    parties_sentence,
+    row_note,
+    verdict,
+    wavelength_status,
+)
+from linkbudget.text import escaped
 
 #: Wavelengths listed one by one in the margin table; longer axes list the tightest ones.
 MAX_LISTED_WAVELENGTHS = 8
@@ -27,10 +37,10 @@ def _db(value, signed=False):
 
 def _name_cell(row, index):
     """The row's name, with its note (reflectance, geometry, parts) dimmed on a line below."""
-    cell = Text(row.name)
+    cell = Text(escaped(row.name))
     note = row_note(row, index)
     if note:
-        cell.append(f"\n{note}", style="dim")
+        cell.append(f"\n{escaped(note)}", style="dim")
     return cell
 
 
@@ -64,14 +74,15 @@ def margin_table(result):
                    "margin\nworst", "status"):
         table.add_column(header, justify="right", no_wrap=True)
     order = result.margin_db["worst"].argsort(kind="stable")[:MAX_LISTED_WAVELENGTHS]
+    status = wavelength_status(result)
     for index in sorted(order):
         worst = result.margin_db["worst"][index]
-        ok = worst >= result.required_margin_db
+        ok = status[index] == "ok"
         table.add_row(
             nm(result.wavelength_m[index]), _db(result.received_dbm["typ"][index], True),
             _db(result.received_dbm["worst"][index], True), _db(result.received_dbm["best"][index], True),
             _db(result.margin_db["typ"][index], True), _db(worst, True),
-            Text("ok" if ok else "SHORT", style="green" if ok else "bold red"),
+            Text(str(status[index]), style="green" if ok else "bold red"),
         )
     if result.wavelength_m.size > MAX_LISTED_WAVELENGTHS:
         table.caption = (f"the {MAX_LISTED_WAVELENGTHS} tightest of {result.wavelength_m.size} wavelengths; "
@@ -82,13 +93,14 @@ def margin_table(result):
 def render(result):
     """The whole terminal report as a rich renderable."""
     closes = result.closes
-    headline = Text(f"{result.title}: {verdict(result)}", style="bold green" if closes else "bold red")
-    summary = Group(headline, Text(margin_sentence(result)), Text(overload_sentence(result)))
+    headline = Text(f"{escaped(result.title)}: {verdict(result)}", style="bold green" if closes else "bold red")
+    about = [Text(text) for text in (escaped(result.description or ""), parties_sentence(result)) if text]
+    summary = Group(headline, *about, Text(margin_sentence(result)), Text(overload_sentence(result)))
     cautions = Panel("\n".join(f"- {line}" for line in result.cautions), title="Laser safety",
                      title_align="left", border_style="yellow")
     parts = [budget_table(result, result.governing_index)]
     if result.wavelength_m.size > 1:
         parts.append(Text(f"(the table shows the wavelength with the least worst-case margin; "
                           f"the link carries {result.wavelength_m.size})", style="dim"))
-    notes = [Text(f"note: {note}", style="yellow") for note in result.notes]
+    notes = [Text(f"note: {escaped(note)}", style="yellow") for note in result.notes]
     return Group(*parts, margin_table(result), summary, *notes, cautions)

@@ -168,3 +168,6 @@ class Element(SegmentSpec):
 
     def loss_db(self, wavelength_m, case):
         return flat_over_wavelength(self.loss.at(case), wavelength_m)
+
+    def row_detail(self, wavelength_m):
+        return {} if self.note is None else {"note": self.note}

@@ -67,7 +67,7 @@ def test_run_example_json_contract(config, cli):
     assert isinstance(data["title"], str) and data["title"] == expected.title
     wavelengths = data["wavelengths_nm"]
     assert isinstance(wavelengths, list) and len(wavelengths) == expected.wavelength_m.size
-    assert_allclose(wavelengths, expected.wavelength_m * 1e9, rtol=1e-12)
+    assert_allclose(wavelengths, expected.wavelength_m * 1e9, rtol=0, atol=5e-7)  # 1e-6 nm resolution
     assert data["segments"]
     for segment in data["segments"]:
         assert isinstance(segment["name"], str) and isinstance(segment["kind"], str)
@@ -77,7 +77,7 @@ def test_run_example_json_contract(config, cli):
     for key in ("received_dbm", "margin_db"):
         for case in ("typ", "worst"):
             assert len(data[key][case]) == len(wavelengths)
-    assert_allclose(data["margin_db"]["worst"], expected.margin_db["worst"], rtol=1e-12)
+    assert_allclose(data["margin_db"]["worst"], expected.margin_db["worst"], rtol=0, atol=5e-10)  # 1e-9 dB
     assert data["closes"] is expected.closes
     assert isinstance(data["cautions"], list) and data["cautions"]
     assert all(isinstance(caution, str) and caution for caution in data["cautions"])
