@@ -15,8 +15,18 @@ MAX_WAVELENGTHS = 100_000
 Wavelength = quantity("length", bounds=RANGES["wavelength"])
 
 
+#: Fraction of a step within which a sweep point counts as the band's upper end (float round-off).
+_BAND_END_TOLERANCE = 1e-6
+
+
 class Band(Strict):
-    """A wavelength sweep ``{from, to, step}``, both ends included."""
+    """A wavelength sweep ``{from, to, step}``, both ends included.
+
+    The points are ``from``, ``from + step``, ... up to ``to``, and ``to`` itself is always the last
+    point: when the step does not divide the span, the last step is shorter (1500 to 1600 nm in
+    steps of 30 nm gives 1500, 1530, 1560, 1590, 1600 nm). A point within a millionth of a step of
+    ``to`` is ``to`` (round-off of the division), never a second point beside it.
+    """
 
     start: Wavelength = Field(alias="from")
     stop: Wavelength = Field(alias="to")
@@ -35,8 +45,8 @@ class Band(Strict):
         return self
 
     def wavelengths_m(self):
-        count = int(np.floor((self.stop - self.start) / self.step * (1 + 1e-12))) + 1
-        return self.start + self.step * np.arange(count)
+        full_steps = int(np.ceil((self.stop - self.start) / self.step - _BAND_END_TOLERANCE))
+        return np.append(self.start + self.step * np.arange(full_steps), self.stop)
 
 
 class Source(Strict):
@@ -79,6 +89,16 @@ class LinkSpec(Strict):
         given = [key for key in ("wavelength", "channels", "band") if getattr(self, key) is not None]
         if len(given) != 1:
             raise InputProblem(given[1:2], "give exactly one of wavelength, channels or band")
+        return self
+
+    @model_validator(mode="after")
+    def _distinct_channels(self):
+        for index, channel in enumerate(self.channels or ()):
+            earlier = next((i for i, other in enumerate(self.channels[:index])
+                            if np.isclose(other, channel, rtol=1e-12, atol=0.0)), None)
+            if earlier is not None:
+                raise InputProblem(("channels", index), f"channel {channel * 1e9:.6g} nm is listed twice "
+                                   f"(also channels[{earlier}]): each channel is one wavelength of the link")
         return self
 
     def wavelengths_m(self):

@@ -149,6 +149,9 @@ CASES = [
          "|200 um", "channels[1]", ("wavelength must be from 100 nm to 100000 nm", "optical range")),
     Case("band-from-above-to", edit("wavelength: 1310 nm", "band: {from: 1600 nm, to: 1500 nm, step: 10 nm}"),
          "to: |1500 nm", "band.to", ("from < to",)),
+    # A channel plan that lists one wavelength twice (issue 7 item 7), also when written in other units.
+    Case("duplicate-channel", edit("wavelength: 1310 nm", "channels: [1310 nm, 1550 nm, 1.31 um]"),
+         "|1.31 um", "channels[2]", ("channel 1310 nm is listed twice", "also channels[0]")),
     Case("band-without-step", edit("wavelength: 1310 nm", "band: {from: 1500 nm, to: 1600 nm}"),
          "band: |{from", "band", ("missing required key 'step'",)),
     # PyYAML's reader rejects control characters before parsing; the position is still known.
