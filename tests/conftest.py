@@ -75,3 +75,16 @@ def run_cli(*args):
 def cli():
     """:func:`run_cli` as a fixture: ``cli("run", path)``."""
     return run_cli
+
+
+#: A user material file (invented Cauchy glass) for the tests of material files.
+TEST_GLASS = """\
+name: test-glass
+description: An invented glass for the tests
+source: hand-made coefficients (2024)
+valid_range: {from: 400 nm, to: 1.6 um}
+cauchy:
+  wavelength_unit: um
+  coefficients: [1.5, 0.004]
+  powers: [0, -2]
+"""

@@ -10,6 +10,7 @@ from numpy.testing import assert_allclose
 from linkbudget.materials import Material, MaterialError, MaterialRangeError, catalog_names, load_material
 from linkbudget.paths import PathRefused
 from linkbudget.physics.flux import absorption_coefficient_from_kappa
+from tests.conftest import TEST_GLASS
 
 UM = 1e-6
 RAW_NK = Path(__file__).parents[1] / "data" / "nk"  # refractiveindex.info copies, see tests/data/README.md
@@ -175,16 +176,6 @@ def test_load_material_unknown_name_lists_catalog():
 
 # ---- users' own material files ----
 
-CAUCHY_GLASS = """\
-name: test-glass
-description: An invented glass for the tests
-source: hand-made coefficients (2024)
-valid_range: {from: 400 nm, to: 1.6 um}
-cauchy:
-  wavelength_unit: um
-  coefficients: [1.5, 0.004]
-  powers: [0, -2]
-"""
 
 
 def _write(folder, relative, text):
@@ -195,7 +186,7 @@ def _write(folder, relative, text):
 
 
 def test_load_material_user_file_relative_to_base_dir(tmp_path):
-    _write(tmp_path, "materials/glass.yaml", CAUCHY_GLASS)
+    _write(tmp_path, "materials/glass.yaml", TEST_GLASS)
     material = load_material("materials/glass.yaml", base_dir=tmp_path)
     assert material.name == "test-glass" and material.data_via is None
     assert_allclose(material.valid_range_m, (400e-9, 1.6e-6), rtol=1e-15)
@@ -204,7 +195,7 @@ def test_load_material_user_file_relative_to_base_dir(tmp_path):
 
 
 def test_load_material_user_file_absolute_path(tmp_path):
-    path = _write(tmp_path, "glass.yml", CAUCHY_GLASS)
+    path = _write(tmp_path, "glass.yml", TEST_GLASS)
     assert_allclose(load_material(path, base_dir="/elsewhere").index(1.0 * UM), 1.504, rtol=1e-15)
 
 
@@ -217,7 +208,7 @@ def test_load_material_user_file_absolute_path(tmp_path):
     ],
 )
 def test_load_material_cauchy_wavelength_unit(tmp_path, old, new):
-    _write(tmp_path, "glass.yaml", CAUCHY_GLASS.replace(old, new))
+    _write(tmp_path, "glass.yaml", TEST_GLASS.replace(old, new))
     assert_allclose(load_material("glass.yaml", base_dir=tmp_path).index(0.5 * UM), 1.516, rtol=1e-14)
 
 
@@ -271,23 +262,23 @@ table:
 @pytest.mark.parametrize(
     "base, old, new, message",
     [
-        (CAUCHY_GLASS, "source:", "sourse:", r"unknown key 'sourse' \(did you mean 'source'\?\)"),
-        (CAUCHY_GLASS, "source: hand-made coefficients (2024)\n", "", r"missing key 'source'"),
-        (CAUCHY_GLASS, "source: hand-made coefficients (2024)", "source: ''", r"source: must be non-empty text"),
-        (CAUCHY_GLASS, "400 nm", "400 furlong", r"valid_range.from: unknown unit; use one of nm"),
-        (CAUCHY_GLASS, "400 nm", "400", r"valid_range.from: expected a number with a unit"),
-        (CAUCHY_GLASS, "to: 1.6 um", "to: 100 nm", r"valid_range: need 0 < from < to"),
-        (CAUCHY_GLASS, "valid_range: {from: 400 nm, to: 1.6 um}\n", "", r"missing key 'valid_range'"),
-        (CAUCHY_GLASS, "wavelength_unit: um", "wavelength_unit: mile", r"wavelength_unit: unknown unit; use one of nm"),
-        (CAUCHY_GLASS, "[0, -2]", "[0]", r"2 coefficients but 1 powers"),
-        (CAUCHY_GLASS, "[1.5, 0.004]", "[1.5, '4e-3']", r"coefficients\[1\]: expected a finite number.*do not quote"),
-        (CAUCHY_GLASS, "[1.5, 0.004]", "[1.5, .nan]", r"coefficients\[1\]: expected a finite number"),
-        (CAUCHY_GLASS, "[1.5, 0.004]", "[true, 0.004]", r"coefficients\[0\]: expected a finite number"),
-        (CAUCHY_GLASS, "name: test-glass", "name: Test Glass", r"lowercase words joined by hyphens"),
-        (CAUCHY_GLASS, "cauchy:", "kauchy:", r"unknown key 'kauchy' \(did you mean 'cauchy'\?\)"),
-        (CAUCHY_GLASS, "cauchy:", "sellmeier: {b: [1.0], c: [0.1 um]}\ncauchy:", r"exactly one model"),
-        (CAUCHY_GLASS, CAUCHY_GLASS, "[1.5, 0.004]\n", r"bad\.yaml: not a material file \(expected a mapping of keys\)"),
-        (CAUCHY_GLASS, "powers: [0, -2]", "powers: [0, -2", r"bad\.yaml: not a material file \(not valid YAML at line 9, column 1\)"),
+        (TEST_GLASS, "source:", "sourse:", r"unknown key 'sourse' \(did you mean 'source'\?\)"),
+        (TEST_GLASS, "source: hand-made coefficients (2024)\n", "", r"missing key 'source'"),
+        (TEST_GLASS, "source: hand-made coefficients (2024)", "source: ''", r"source: must be non-empty text"),
+        (TEST_GLASS, "400 nm", "400 furlong", r"valid_range.from: unknown unit; use one of nm"),
+        (TEST_GLASS, "400 nm", "400", r"valid_range.from: expected a number with a unit"),
+        (TEST_GLASS, "to: 1.6 um", "to: 100 nm", r"valid_range: need 0 < from < to"),
+        (TEST_GLASS, "valid_range: {from: 400 nm, to: 1.6 um}\n", "", r"missing key 'valid_range'"),
+        (TEST_GLASS, "wavelength_unit: um", "wavelength_unit: mile", r"wavelength_unit: unknown unit; use one of nm"),
+        (TEST_GLASS, "[0, -2]", "[0]", r"2 coefficients but 1 powers"),
+        (TEST_GLASS, "[1.5, 0.004]", "[1.5, '4e-3']", r"coefficients\[1\]: expected a finite number.*do not quote"),
+        (TEST_GLASS, "[1.5, 0.004]", "[1.5, .nan]", r"coefficients\[1\]: expected a finite number"),
+        (TEST_GLASS, "[1.5, 0.004]", "[true, 0.004]", r"coefficients\[0\]: expected a finite number"),
+        (TEST_GLASS, "name: test-glass", "name: Test Glass", r"lowercase words joined by hyphens"),
+        (TEST_GLASS, "cauchy:", "kauchy:", r"unknown key 'kauchy' \(did you mean 'cauchy'\?\)"),
+        (TEST_GLASS, "cauchy:", "sellmeier: {b: [1.0], c: [0.1 um]}\ncauchy:", r"exactly one model"),
+        (TEST_GLASS, TEST_GLASS, "[1.5, 0.004]\n", r"bad\.yaml: not a material file \(expected a mapping of keys\)"),
+        (TEST_GLASS, "powers: [0, -2]", "powers: [0, -2", r"bad\.yaml: not a material file \(not valid YAML at line 9, column 1\)"),
         (TABLE_MATERIAL, "source:", "valid_range: {from: 1 um, to: 2 um}\nsource:", r"valid_range: not allowed"),
         (TABLE_MATERIAL, "[2.0, 1.9, 0.002]", "[0.5, 1.9, 0.002]", r"rows\[0\]: wavelengths must increase"),
         (TABLE_MATERIAL, "0.002]", "-0.002]", r"rows\[1\]: k must be >= 0"),
@@ -315,7 +306,7 @@ def test_load_material_malformed_user_file_raises(tmp_path, base, old, new, mess
     ],
 )
 def test_load_material_malformed_formula_block_raises(tmp_path, block, message):
-    text = CAUCHY_GLASS[: CAUCHY_GLASS.index("cauchy:")] + block + "\n"
+    text = TEST_GLASS[: TEST_GLASS.index("cauchy:")] + block + "\n"
     _write(tmp_path, "bad.yaml", text)
     with pytest.raises(MaterialError, match=message):
         load_material("bad.yaml", base_dir=tmp_path)
@@ -325,7 +316,7 @@ def test_load_material_user_gas_file(tmp_path):
     # Ciddor 1996 standard air written in nm⁻²: 1 µm⁻² = 1e-6 nm⁻²; n − 1 at 0.6328 µm as derived
     # in test_dispersion (30-digit decimal arithmetic).
     block = "gas:\n  b: [0.05792105e-6 nm^-2, 0.00167917e-6 nm^-2]\n  c: [238.0185e-6 nm^-2, 57.362e-6 nm^-2]\n"
-    text = CAUCHY_GLASS[: CAUCHY_GLASS.index("cauchy:")] + block
+    text = TEST_GLASS[: TEST_GLASS.index("cauchy:")] + block
     _write(tmp_path, "air.yaml", text)
     n = load_material("air.yaml", base_dir=tmp_path).index(0.6328 * UM)
     assert_allclose(n.real - 1, 2.76532738083504e-4, rtol=1e-10)

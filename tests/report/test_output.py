@@ -13,17 +13,7 @@ import textwrap
 import pytest
 
 from linkbudget.report.output import OutputError, write_atomic
-
-GLASS = """\
-name: test-glass
-description: An invented glass for the tests
-source: hand-made coefficients (2024)
-valid_range: {from: 400 nm, to: 1.6 um}
-cauchy:
-  wavelength_unit: um
-  coefficients: [1.5, 0.004]
-  powers: [0, -2]
-"""
+from tests.conftest import TEST_GLASS
 
 
 def leftovers(folder):
@@ -83,7 +73,7 @@ def test_force_replaces_a_symlink_itself_never_writing_through(tmp_path):
 
 def test_a_material_file_the_link_reads_is_protected(tmp_path, cli, write_link, minimal_link):
     glass = tmp_path / "glass.yaml"
-    glass.write_text(GLASS, encoding="utf-8")
+    glass.write_text(TEST_GLASS, encoding="utf-8")
     link = write_link(minimal_link.replace(
         "chain:\n", "chain:\n  - {name: air, kind: gap, length: 1 mm, index: 1.0}\n"
                     "  - {name: window, kind: medium, thickness: 1 mm, material: ./glass.yaml}\n"))
@@ -91,7 +81,7 @@ def test_a_material_file_the_link_reads_is_protected(tmp_path, cli, write_link, 
     result = cli("run", link, "-f", "json", "-o", glass, "--force")
     assert result.exit_code == 2
     assert "input file" in result.stderr
-    assert glass.read_text(encoding="utf-8") == GLASS
+    assert glass.read_text(encoding="utf-8") == TEST_GLASS
 
 
 # --- exclusive creation --------------------------------------------------------------------------
