@@ -627,3 +627,61 @@ def test_window_touching_a_guide_gets_no_air_faces():
     chain = [{"name": "cladding", "kind": "medium", "thickness": "1 mm", "index": 1.5},
              {"name": "chip", "kind": "waveguide", "length": "1 cm", "attenuation": "1 dB/cm"}]
     assert [r.kind for r in evaluate(chain).rows] == ["medium", "waveguide"]
+
+
+# One medium has one complex index N = n + iκ: the κ given as `kappa`, `absorption` (α) or
+# `attenuation` (dB per length) is the imaginary part of the faces' index too, κ = αλ/(4π)
+# (Born & Wolf). The thin absorbing slab below is 0.2 um thick in air at 1550 nm; the
+# attenuation form is bounded at 1 dB/um, so it is checked with its own, smaller κ.
+LOSSY_THICKNESS_M = 0.2e-6
+LOSSY_ALPHA_PER_M = 4 * np.pi * 0.45 / 1550e-9
+LOSSY_ATTENUATION_DB_PER_M = 0.5e6
+LOSSY_FORMS = {  # form: (medium keys, the complex index they state)
+    "kappa": ({"index": "1.35", "kappa": 0.45}, 1.35 + 0.45j),
+    "absorption": ({"index": "1.35", "absorption": f"{LOSSY_ALPHA_PER_M!r} /m"}, 1.35 + 0.45j),
+    "attenuation": ({"index": "1.35", "attenuation": f"{LOSSY_ATTENUATION_DB_PER_M!r} dB/m"},
+                    1.35 + 1j * LOSSY_ATTENUATION_DB_PER_M / (10 * np.log10(np.e)) * 1550e-9 / (4 * np.pi)),
+}
+
+
+def lossy_slab(medium_keys, multiple_reflections):
+    slab = {"name": "slab", "kind": "medium", "thickness": "0.2 um",
+            "multiple_reflections": multiple_reflections, **medium_keys}
+    return [{"name": "g1", "kind": "gap", "length": "1 mm", "index": 1.0}, slab,
+            {"name": "g2", "kind": "gap", "length": "1 mm", "index": 1.0}]
+
+
+@pytest.mark.parametrize("multiple_reflections", [False, True])
+@pytest.mark.parametrize("form", sorted(LOSSY_FORMS))
+def test_lossy_medium_faces_use_the_stated_kappa(form, multiple_reflections):
+    # Every row (faces, bulk, reflections) is that of the complex index, and the total is tmm's:
+    # inc_tmm with the slab incoherent when the reflections are summed, else the single-pass
+    # product T1·τ·T2 of coh_tmm half-space faces and τ = exp(−4πκL/λ) (normal incidence: s = p).
+    # Before the fix the faces were lossless: for κ = 0.45, 3.364 dB where tmm gives 3.216 dB.
+    keys, index = LOSSY_FORMS[form]
+    stated = evaluate(lossy_slab(keys, multiple_reflections))
+    complex_index = evaluate(lossy_slab({"index": str(index)}, multiple_reflections))
+    assert [r.name for r in stated.rows] == [r.name for r in complex_index.rows]
+    for case in ("typ", "worst", "best"):
+        assert_allclose(stated.loss_db[case], complex_index.loss_db[case], rtol=0, atol=TIGHT)
+    if multiple_reflections:
+        expected = tmm.inc_tmm("s", [1.0, index, 1.0], [np.inf, LOSSY_THICKNESS_M * 1e9, np.inf],
+                               ["i", "i", "i"], 0.0, 1550.0)["T"]
+    else:
+        expected = (tmm.coh_tmm("s", [1.0, index], [np.inf, np.inf], 0.0, 1550.0)["T"]
+                    * np.exp(-4 * np.pi * index.imag / 1550e-9 * LOSSY_THICKNESS_M)
+                    * tmm.coh_tmm("s", [index, 1.0], [np.inf, np.inf], 0.0, 1550.0)["T"])
+    assert_allclose(loss_db(total_transmittance(stated)), [loss_db(expected)], rtol=0, atol=TIGHT)
+
+
+def test_lossy_medium_kappa_spread_faces_take_typ_bulk_takes_each_case():
+    # The faces hold one index per wavelength (typical κ); the bulk row keeps each case's κ:
+    # loss = 10·log10(e)·4πκ/λ·L (flux law, Born & Wolf) with κ = 0.6 in the worst case.
+    spread = evaluate(lossy_slab({"index": "1.35", "kappa": {"min": 0.3, "typ": 0.45, "max": 0.6}}, False))
+    complex_index = evaluate(lossy_slab({"index": "1.35+0.45j"}, False))
+    for face in ("g1 → slab", "slab → g2"):
+        for case in ("typ", "worst", "best"):
+            assert_allclose(row(spread, face).loss_db[case], row(complex_index, face).loss_db[case],
+                            rtol=0, atol=TIGHT)
+    bulk_worst_db = 10 * np.log10(np.e) * 4 * np.pi * 0.6 / 1550e-9 * LOSSY_THICKNESS_M
+    assert_allclose(row(spread, "slab").loss_db["worst"], [bulk_worst_db], rtol=0, atol=TIGHT)

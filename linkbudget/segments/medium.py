@@ -143,6 +143,20 @@ class Bulk(OpticalSegment):
             return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
         return absorption_coefficient_per_m(wavelength_m, kappa=self.medium_index().imag)
 
+    def resolve(self, wavelength_m, files):
+        """Resolve the faces' index; a stated loss form sets its imaginary part (one N per medium).
+
+        With ``kappa``, ``absorption`` or ``attenuation`` the medium's complex index is
+        Re(N) + iκ, κ = αλ/(4π) (:func:`linkbudget.physics.flux.kappa_from_absorption_coefficient`)
+        from the typical value of the form: the faces hold one index per wavelength, while the
+        bulk row keeps each budget case's own value.
+        """
+        resolved = super().resolve(wavelength_m, files)
+        if self._check_bulk_forms() and resolved._index is not None:
+            kappa = flux.kappa_from_absorption_coefficient(self.absorption_per_m(wavelength_m, "typ"), wavelength_m)
+            resolved._index = resolved._index.real + 1j * kappa
+        return resolved
+
     def path_length_m(self, case):
         raise NotImplementedError
 
