@@ -203,10 +203,10 @@ def materials(
     from rich.console import Console
 
     from linkbudget.materials.dispersion import MaterialRangeError
-    from linkbudget.materials.library import MaterialError, catalog_names, load_material
+    from linkbudget.materials.library import MaterialError, catalog_names, covering_hint, load_material
     from linkbudget.paths import PathRefused
     from linkbudget.report.materials import catalog_table, constants_table
-    from linkbudget.units import UnitError, parse_quantity
+    from linkbudget.units import WAVELENGTH_EXAMPLE, UnitError, parse_quantity
 
     try:
         if name is None:
@@ -219,12 +219,14 @@ def materials(
             Console().print(catalog_table([material]))
             Console().print("give --wavelength to see its constants")
             return
-        wavelength_m = np.array([parse_quantity(text, "length") for text in wavelength])
+        wavelength_m = np.array([parse_quantity(text, "length", WAVELENGTH_EXAMPLE) for text in wavelength])
         Console().print(constants_table(material, wavelength_m))
     except UnitError as error:
         _fail_input(f"--wavelength: {error}{format_hint(error.hint)}")
-    except (MaterialError, MaterialRangeError, PathRefused) as error:
-        _fail_input(f"{name}: {error}")
+    except MaterialRangeError as error:  # its message names the material
+        _fail_input(f"{error}{format_hint(covering_hint(name, wavelength_m))}")
+    except (MaterialError, PathRefused) as error:  # their messages name the material or file
+        _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
 
 
 def main():

@@ -290,6 +290,23 @@ def test_min_margin_without_ratio_unit_exits_2(cli, links, command, value, phras
     assert "Traceback" not in result.output
 
 
+# --- materials -------------------------------------------------------------------------------------
+
+def test_materials_out_of_range_names_the_material_once_and_suggests_a_covering_one(cli):
+    # The catalog's silicon stops at 1450 nm; silicon-infrared covers 1550 nm, as the link-file
+    # error for the same material and wavelength suggests.
+    result = cli("materials", "silicon", "-w", "1550nm")
+    assert result.exit_code == 2
+    assert result.stderr.count("silicon:") == 1, result.stderr
+    assert "hint: " in result.stderr and "silicon-infrared" in result.stderr
+
+
+def test_materials_wavelength_without_unit_shows_a_wavelength_example(cli):
+    result = cli("materials", "silicon", "-w", "1550")
+    assert result.exit_code == 2
+    assert "missing unit" in result.stderr and "e.g. '1550 nm'" in result.stderr
+
+
 # --- --version and the installed script ------------------------------------------------------------
 
 def test_version_prints_the_package_version(cli):
