@@ -32,7 +32,8 @@ def resolve_index(index, material, wavelength_m, files, key_path=()):
     try:
         return load_material(material, files=files).index(wavelength_m)
     except MaterialRangeError as error:
-        raise InputProblem((*key_path, "material"), str(error), covering_hint(material, wavelength_m)) from None
+        hint = covering_hint(material, wavelength_m) or "write an explicit `index` (n or n+κj) for these wavelengths"
+        raise InputProblem((*key_path, "material"), str(error), hint) from None
     except MaterialError as error:
         raise InputProblem((*key_path, "material"), str(error),
                              "`linkbudget materials` lists the catalog") from None

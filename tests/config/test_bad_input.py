@@ -66,6 +66,8 @@ BILLION_LAUGHS = "a: &a [x, x, x, x, x, x, x, x, x]\n" + "".join(
 
 DEEP_NESTING = "title: " + "[" * 2000 + "]" * 2000 + "\n"
 
+HOP = "  - name: hop\n    kind: gap\n    length: 1 mm\n"
+
 WINDOW = "  - name: window\n    kind: medium\n    thickness: 1 mm\n"
 
 CASES = [
@@ -81,6 +83,11 @@ CASES = [
          "length: |2 deg", "chain[0].length", ("'2 deg' is an angle, expected a length",)),
     Case("bare-number-wavelength", edit("wavelength: 1310 nm", "wavelength: 1550"),
          "wavelength: |1550", "wavelength", ("missing unit", "e.g. '1550 nm'")),
+    Case("default-air-beyond-its-data", edit("wavelength: 1310 nm", "wavelength: 2000 nm") + HOP,
+         "  - |name: hop", "chain[2]", ("no `material` or `index` written", "air (the default)",
+                                        "2000 nm is outside", "explicit `index`")),
+    Case("written-air-beyond-its-data", edit("wavelength: 1310 nm", "wavelength: 2000 nm") + HOP
+         + "    material: air\n", "material: |air", "chain[2].material", ("2000 nm is outside", "explicit `index`")),
     Case("dB-where-dBm", edit("power: 0 dBm", "power: 0 dB"),
          "power: |0 dB", "source.power", ("is a ratio, expected a power", "dBm")),
     Case("unknown-unit", edit("length: 2 km", "length: 2 kmm"),
