@@ -31,6 +31,17 @@ app = typer.Typer(
 )
 
 
+class _Command(typer.core.TyperCommand):
+    """A command whose help names each argument by its metavar alone; typer would add the Python
+    type of the parameter (``<list[Path]>``), which tells a user nothing."""
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        for param in self.params:
+            if isinstance(param, typer.core.TyperArgument):
+                param.display_type_rich = lambda ctx: None
+
+
 class Format(str, Enum):
     terminal = "terminal"
     json = "json"
@@ -114,16 +125,16 @@ def _report_text(result, output_format):
     return console.file.getvalue()
 
 
-@app.command()
+@app.command(cls=_Command)
 def run(
-    link: Annotated[Path, typer.Argument(help="The link file (YAML).")],
+    link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
     output: Annotated[
-        Path | None, typer.Option("--output", "-o", help="Write to this file instead of the terminal.")
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
     min_margin: Annotated[
-        str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")
+        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
     allow_path: AllowPath = None,
 ):
@@ -156,11 +167,11 @@ def _emit(result, output_format, output, force, protected):
         _fail_input(str(error))
 
 
-@app.command()
+@app.command(cls=_Command)
 def check(
-    links: Annotated[list[Path], typer.Argument(help="One or more link files.")],
+    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
     min_margin: Annotated[str | None, typer.Option(
-        "--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+        "--min-margin", metavar="MARGIN", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
     allow_path: AllowPath = None,
 ):
@@ -189,13 +200,13 @@ def check(
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 
 
-@app.command()
+@app.command(cls=_Command)
 def materials(
     name: Annotated[
-        str | None, typer.Argument(help="A catalog name or a material file; omit to list the catalog.")
+        str | None, typer.Argument(metavar="NAME", help="A catalog name or a material file; omit to list the catalog.")
     ] = None,
     wavelength: Annotated[
-        list[str] | None, typer.Option("--wavelength", "-w", help="Wavelength(s), e.g. '1550nm'.")
+        list[str] | None, typer.Option("--wavelength", "-w", metavar="WAVELENGTH", help="Wavelength(s), e.g. '1550nm'.")
     ] = None,
 ):
     """List the material catalog, or show one material's n, κ, α and dB/mm at given wavelengths."""

@@ -307,6 +307,18 @@ def test_materials_wavelength_without_unit_shows_a_wavelength_example(cli):
     assert "missing unit" in result.stderr and "e.g. '1550 nm'" in result.stderr
 
 
+# --- help --------------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("command", [[], ["run"], ["check"], ["materials"]], ids=["app", "run", "check", "materials"])
+def test_help_names_no_python_types(cli, command):
+    # Only a list of choices may stand in angle brackets (``<terminal|json|...>``), never a type
+    # of the code such as <list[Path]>, <path> or <str>.
+    result = cli(*command, "--help")
+    assert result.exit_code == 0
+    bracketed = re.findall(r"<[^<>]*>", result.stdout)
+    assert all("|" in text for text in bracketed), bracketed
+
+
 # --- --version and the installed script ------------------------------------------------------------
 
 def test_version_prints_the_package_version(cli):
