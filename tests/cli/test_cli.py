@@ -307,6 +307,19 @@ def test_materials_wavelength_without_unit_shows_a_wavelength_example(cli):
     assert "missing unit" in result.stderr and "e.g. '1550 nm'" in result.stderr
 
 
+# --- numbers ---------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("command", [["run", "-f", "terminal"], ["run", "-f", "markdown"], ["run", "-f", "csv"],
+                                     ["check"]], ids=["terminal", "markdown", "csv", "check"])
+def test_a_value_that_rounds_to_zero_prints_without_a_minus_sign(cli, write_link, minimal_link, command):
+    # Received -1.5 dBm against a -1.499 dBm sensitivity: the margin is -0.001 dB, 0.00 to two places.
+    path = write_link(minimal_link.replace("sensitivity: -30 dBm", "sensitivity: -1.499 dBm"))
+    result = cli(*command, path)
+    assert result.exit_code == 1
+    assert "-0.00" not in result.stdout, result.stdout
+    assert not re.search(r"(^|,)-0(,|$)", result.stdout, re.M), result.stdout  # CSV's -0.0
+
+
 # --- help --------------------------------------------------------------------------------------------
 
 @pytest.mark.parametrize("command", [[], ["run"], ["check"], ["materials"]], ids=["app", "run", "check", "materials"])
