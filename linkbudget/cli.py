@@ -171,7 +171,8 @@ def _emit(result, output_format, output, force, protected):
 def check(
     links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
     min_margin: Annotated[str | None, typer.Option(
-        "--min-margin", metavar="MARGIN", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+        "--min-margin", metavar="MARGIN",
+        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
     allow_path: AllowPath = None,
 ):
