@@ -31,6 +31,17 @@ app = typer.Typer(
 )
 
 
+class _Command(typer.core.TyperCommand):
+    """A command whose help names each argument by its metavar alone; typer would add the Python
+    type of the parameter (``<list[Path]>``), which tells a user nothing."""
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        for param in self.params:
+            if isinstance(param, typer.core.TyperArgument):
+                param.display_type_rich = lambda ctx: None
+
+
 class Format(str, Enum):
     terminal = "terminal"
     json = "json"
@@ -114,16 +125,16 @@ def _report_text(result, output_format):
     return console.file.getvalue()
 
 
-@app.command()
+@app.command(cls=_Command)
 def run(
-    link: Annotated[Path, typer.Argument(help="The link file (YAML).")],
+    link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
     output: Annotated[
-        Path | None, typer.Option("--output", "-o", help="Write to this file instead of the terminal.")
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
     min_margin: Annotated[
-        str | None, typer.Option("--min-margin", help="Override the required margin, e.g. '3 dB'.")
+        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
     allow_path: AllowPath = None,
 ):
@@ -156,11 +167,12 @@ def _emit(result, output_format, output, force, protected):
         _fail_input(str(error))
 
 
-@app.command()
+@app.command(cls=_Command)
 def check(
-    links: Annotated[list[Path], typer.Argument(help="One or more link files.")],
+    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
     min_margin: Annotated[str | None, typer.Option(
-        "--min-margin", help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+        "--min-margin", metavar="MARGIN",
+        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
     allow_path: AllowPath = None,
 ):
@@ -189,13 +201,13 @@ def check(
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 
 
-@app.command()
+@app.command(cls=_Command)
 def materials(
     name: Annotated[
-        str | None, typer.Argument(help="A catalog name or a material file; omit to list the catalog.")
+        str | None, typer.Argument(metavar="NAME", help="A catalog name or a material file; omit to list the catalog.")
     ] = None,
     wavelength: Annotated[
-        list[str] | None, typer.Option("--wavelength", "-w", help="Wavelength(s), e.g. '1550nm'.")
+        list[str] | None, typer.Option("--wavelength", "-w", metavar="WAVELENGTH", help="Wavelength(s), e.g. '1550nm'.")
     ] = None,
 ):
     """List the material catalog, or show one material's n, κ, α and dB/mm at given wavelengths."""
@@ -203,10 +215,10 @@ def materials(
     from rich.console import Console
 
     from linkbudget.materials.dispersion import MaterialRangeError
-    from linkbudget.materials.library import MaterialError, catalog_names, load_material
+    from linkbudget.materials.library import MaterialError, catalog_names, covering_hint, load_material
     from linkbudget.paths import PathRefused
     from linkbudget.report.materials import catalog_table, constants_table
-    from linkbudget.units import UnitError, parse_quantity
+    from linkbudget.units import WAVELENGTH_EXAMPLE, UnitError, parse_quantity
 
     try:
         if name is None:
@@ -219,12 +231,14 @@ def materials(
             Console().print(catalog_table([material]))
             Console().print("give --wavelength to see its constants")
             return
-        wavelength_m = np.array([parse_quantity(text, "length") for text in wavelength])
+        wavelength_m = np.array([parse_quantity(text, "length", WAVELENGTH_EXAMPLE) for text in wavelength])
         Console().print(constants_table(material, wavelength_m))
     except UnitError as error:
         _fail_input(f"--wavelength: {error}{format_hint(error.hint)}")
-    except (MaterialError, MaterialRangeError, PathRefused) as error:
-        _fail_input(f"{name}: {error}")
+    except MaterialRangeError as error:  # its message names the material
+        _fail_input(f"{error}{format_hint(covering_hint(name, wavelength_m))}")
+    except (MaterialError, PathRefused) as error:  # their messages name the material or file
+        _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
 
 
 def main():

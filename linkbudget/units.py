@@ -76,6 +76,9 @@ EXAMPLES = {
     "angle": "0.5 deg",
 }
 
+#: Example shown for a length that is a wavelength.
+WAVELENGTH_EXAMPLE = "1550 nm"
+
 _QUANTITY = re.compile(
     r"^\s*(?P<number>[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?)\s*(?P<unit>\S*)\s*$", re.ASCII
 )
@@ -94,15 +97,19 @@ def allowed_units(dimension):
     return [unit for unit, (dim, _) in UNITS.items() if dim == dimension]
 
 
-def _allowed_hint(dimension):
-    article = "an" if dimension[0] in "aeiou" else "a"
+def with_article(word):
+    """``word`` after its indefinite article: "an attenuation", "a length"."""
+    return f"{'an' if word[0] in 'aeiou' else 'a'} {word}"
+
+
+def _allowed_hint(dimension, example):
     return (
-        f"write {article} {dimension} with its unit, e.g. '{EXAMPLES[dimension]}' "
+        f"write {with_article(dimension)} with its unit, e.g. '{example}' "
         f"(units: {', '.join(allowed_units(dimension))})"
     )
 
 
-def parse_quantity(value, dimension):
+def parse_quantity(value, dimension, example=None):
     """Parse a quantity string into the internal unit of ``dimension``.
 
     Parameters
@@ -112,6 +119,9 @@ def parse_quantity(value, dimension):
     dimension : str
         One of the dimensions of :data:`UNITS` (length, power, ratio, attenuation,
         absorption, angle).
+    example : str, optional
+        Example shown in error messages (such as :data:`WAVELENGTH_EXAMPLE`); default: the
+        dimension's entry in :data:`EXAMPLES`.
 
     Returns
     -------
@@ -124,25 +134,29 @@ def parse_quantity(value, dimension):
         If the text is not a number followed by a known unit of that dimension, lacks a unit,
         or is not finite.
     """
+    example = example or EXAMPLES[dimension]
     if isinstance(value, bool) or not isinstance(value, (str, int, float)):
-        raise UnitError(f"expected a {dimension} such as '{EXAMPLES[dimension]}'", _allowed_hint(dimension))
+        raise UnitError(f"expected {with_article(dimension)} such as '{example}'",
+                        _allowed_hint(dimension, example))
     if isinstance(value, (int, float)):
-        raise UnitError(f"missing unit: {value!r} is a bare number", _allowed_hint(dimension))
+        raise UnitError(f"missing unit: {value!r} is a bare number", _allowed_hint(dimension, example))
     match = _QUANTITY.match(value)
     if match is None:
-        raise UnitError(f"cannot read {value!r} as a {dimension}", _allowed_hint(dimension))
+        raise UnitError(f"cannot read {value!r} as {with_article(dimension)}",
+                        _allowed_hint(dimension, example))
     number = float(match["number"])
     unit = match["unit"]
     if not math.isfinite(number):
         raise UnitError(f"{value!r} is not a finite number")
     if not unit:
-        raise UnitError(f"missing unit in {value!r}", _allowed_hint(dimension))
+        raise UnitError(f"missing unit in {value!r}", _allowed_hint(dimension, example))
     if unit not in UNITS:
-        raise UnitError(f"unknown unit {unit!r} in {value!r}", _allowed_hint(dimension))
+        raise UnitError(f"unknown unit {unit!r} in {value!r}", _allowed_hint(dimension, example))
     unit_dimension, factor = UNITS[unit]
     if unit_dimension != dimension:
         raise UnitError(
-            f"{value!r} is a {unit_dimension}, expected a {dimension}", _allowed_hint(dimension)
+            f"{value!r} is {with_article(unit_dimension)}, expected {with_article(dimension)}",
+            _allowed_hint(dimension, example),
         )
     value_si = number * factor
     if not math.isfinite(value_si):

@@ -56,7 +56,7 @@ def _within(value, bounds):
     return value if bounds is None else bounds.check(value)
 
 
-def quantity(dimension, *, bounds=None):
+def quantity(dimension, *, bounds=None, example=None):
     """An annotated float field parsed from a quantity string of ``dimension``.
 
     Parameters
@@ -65,9 +65,11 @@ def quantity(dimension, *, bounds=None):
         A dimension of :data:`linkbudget.units.UNITS`.
     bounds : linkbudget.config.ranges.Range, optional
         The valid range (internal unit); a value outside it is an input error that states it.
+    example : str, optional
+        Example value for error messages (default: the dimension's, see :func:`parse_quantity`).
     """
     def parse(value):
-        return _within(parse_quantity(value, dimension), bounds)
+        return _within(parse_quantity(value, dimension, example), bounds)
 
     return Annotated[float, BeforeValidator(parse), bounds]
 

@@ -94,6 +94,7 @@ def _message_of(item):
 def problems_from_validation(error, positions, model, data, prefix=()):
     """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s."""
     problems = []
+    suggested = set()  # (parent loc, key) a misspelt key was taken for: not also "missing"
     for item in error.errors():
         loc = tuple(item["loc"])
         if item["type"] == "extra_forbidden":
@@ -103,7 +104,11 @@ def problems_from_validation(error, positions, model, data, prefix=()):
             close = difflib.get_close_matches(str(key), allowed, n=1)
             hint = f"did you mean '{close[0]}'?" if close else (
                 f"allowed keys: {', '.join(allowed)}" if allowed else None)
+            suggested.update((loc[:-1], match) for match in close)
             problems.append(positions.problem((*prefix, *loc), f"unknown key '{key}'", hint, at_key=True))
+    for item in error.errors():
+        loc = tuple(item["loc"])
+        if item["type"] == "extra_forbidden" or loc and (loc[:-1], loc[-1]) in suggested:
             continue
         if item["type"] == "missing":
             path = _written_path(data, loc)

@@ -7,12 +7,13 @@ from pydantic import Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Strict, quantity, spread
 from linkbudget.config.ranges import RANGES
+from linkbudget.units import WAVELENGTH_EXAMPLE
 
 #: Most wavelengths a band may expand to.
 MAX_WAVELENGTHS = 100_000
 
 
-Wavelength = quantity("length", bounds=RANGES["wavelength"])
+Wavelength = quantity("length", bounds=RANGES["wavelength"], example=WAVELENGTH_EXAMPLE)
 
 
 #: Fraction of a step within which a sweep point counts as the band's upper end (float round-off).

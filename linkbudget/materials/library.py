@@ -149,6 +149,18 @@ def load_material(name_or_path, *, base_dir=None, files=None):
     return _catalog_material(text)
 
 
+def covering_hint(material, wavelength_m):
+    """Catalog materials of the same family whose data cover every wavelength, as a hint (or None)."""
+    family = str(material).split("-")[0]
+    covering = []
+    for name in catalog_names():
+        low, high = load_material(name).valid_range_m
+        same_family = name.split("-")[0] == family and name != material
+        if same_family and low <= wavelength_m.min() and wavelength_m.max() <= high:
+            covering.append(name)
+    return f"catalog materials named {family}-* with data there: {', '.join(covering)}" if covering else None
+
+
 @functools.cache
 def _catalog_material(name):
     names = _catalog_names()

@@ -31,6 +31,6 @@ def render(result):
     labels = wavelength_text(result.wavelength_m)
     for index in range(result.wavelength_m.size):
         for number, row in enumerate(result.rows):
-            values = [f"{q[case][number, index]:.6g}" for q in quantities for case in CASES]
+            values = [f"{q[case][number, index] + 0.0:.6g}" for q in quantities for case in CASES]
             writer.writerow([labels[index], number + 1, csv_text(row.name), row.kind, *values])
     return buffer.getvalue()

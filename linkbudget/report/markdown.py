@@ -1,6 +1,7 @@
 """The Markdown report, for a pull-request comment."""
 
 from linkbudget.report.summary import (
+    fixed,
     margin_sentence,
     nm,
     overload_sentence,
@@ -24,7 +25,7 @@ def markdown_text(text):
 
 
 def _cell(value):
-    return "blocked" if value == float("inf") else f"{value:.2f}"
+    return "blocked" if value == float("inf") else fixed(value)
 
 
 def _table(headers, rows, *, text_columns=1):

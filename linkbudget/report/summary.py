@@ -4,6 +4,12 @@ import numpy as np
 
 from linkbudget.text import escaped
 
+
+def fixed(value, places=2, signed=False):
+    """``value`` with ``places`` decimals; a value that rounds to zero prints as 0.00, never -0.00."""
+    value = round(float(value), places) + 0.0  # adding 0.0 turns -0.0 into 0.0
+    return f"{value:+.{places}f}" if signed else f"{value:.{places}f}"
+
 #: Resolution of every printed and JSON wavelength [nm]: values closer than this print alike.
 WAVELENGTH_RESOLUTION_NM = 1e-6
 
@@ -44,10 +50,10 @@ def margin_sentence(result):
     required = result.required_margin_db
     where = _where(result, result.margin_db["worst"], index)
     if result.margin_ok:
-        return (f"Margin met: worst-case margin {worst:.2f} dB{where} is at least the required "
-                f"{required:.2f} dB (spare {worst - required:.2f} dB).")
-    return (f"Margin NOT met: worst-case margin {worst:.2f} dB{where} is below the required "
-            f"{required:.2f} dB (short by {required - worst:.2f} dB).")
+        return (f"Margin met: worst-case margin {fixed(worst)} dB{where} is at least the required "
+                f"{fixed(required)} dB (spare {fixed(worst - required)} dB).")
+    return (f"Margin NOT met: worst-case margin {fixed(worst)} dB{where} is below the required "
+            f"{fixed(required)} dB (short by {fixed(required - worst)} dB).")
 
 
 def overload_sentence(result):
@@ -58,10 +64,10 @@ def overload_sentence(result):
     index = int(np.argmax(best))
     where = _where(result, best, index)
     if result.overload_ok:
-        return (f"Overload OK: best-case received power {best[index]:.2f} dBm{where} is at or below "
-                f"the overload {result.overload_dbm:.2f} dBm.")
-    return (f"Overload EXCEEDED: best-case received power {best[index]:.2f} dBm{where} is above the "
-            f"overload {result.overload_dbm:.2f} dBm by {best[index] - result.overload_dbm:.2f} dB; "
+        return (f"Overload OK: best-case received power {fixed(best[index])} dBm{where} is at or below "
+                f"the overload {fixed(result.overload_dbm)} dBm.")
+    return (f"Overload EXCEEDED: best-case received power {fixed(best[index])} dBm{where} is above the "
+            f"overload {fixed(result.overload_dbm)} dBm by {fixed(best[index] - result.overload_dbm)} dB; "
             "add attenuation.")
 
 
@@ -75,7 +81,7 @@ def _percent(values, index):
 
 
 def _db_cases(losses, index):
-    return f"{float(losses['typ'][index]):.2f} dB typ, {float(losses['worst'][index]):.2f} worst"
+    return f"{fixed(losses['typ'][index])} dB typ, {fixed(losses['worst'][index])} worst"
 
 
 def row_note(row, index):
@@ -90,16 +96,16 @@ def row_note(row, index):
     if "geometric_loss_db" in detail:
         notes.append(f"geometry: {_db_cases(detail['geometric_loss_db'], index)}")
     if "beam_loss_db" in detail:
-        notes.append(f"beam {float(detail['beam_loss_db']['typ'][index]):.2f} dB, "
-                     f"medium {float(detail['ambient_loss_db']['typ'][index]):.2f} dB (typ)")
+        notes.append(f"beam {fixed(detail['beam_loss_db']['typ'][index])} dB, "
+                     f"medium {fixed(detail['ambient_loss_db']['typ'][index])} dB (typ)")
     if "beam" in detail:
         notes.append("beam not evaluated")
     if "loss_parts_db" in detail:
-        notes.append(", ".join(f"{part} {float(cases['typ'][index]):.2f}"
+        notes.append(", ".join(f"{part} {fixed(cases['typ'][index])}"
                                for part, cases in detail["loss_parts_db"].items()
                                if any(float(cases[case][index]) != 0 for case in cases)))
     if "return_loss_db" in detail:
-        notes.append(f"return loss {detail['return_loss_db']:.1f} dB")
+        notes.append(f"return loss {fixed(detail['return_loss_db'], 1)} dB")
     if detail.get("port") is not None:
         notes.append(f"port {detail['port']}")
     if detail.get("note"):
@@ -129,7 +135,8 @@ def check_line(result, path):
                                           (result.overload_ok, "overload exceeded")) if not ok]
     word = "PASS " if result.closes else "FAIL "
     worst = float(result.margin_db["worst"].min())
-    line = f"{word}  {escaped(path)}: worst-case margin {worst:+.2f} dB, required {result.required_margin_db:.2f} dB"
+    line = (f"{word}  {escaped(path)}: worst-case margin {fixed(worst, signed=True)} dB, "
+            f"required {fixed(result.required_margin_db)} dB")
     return line + (f" ({', '.join(reasons)})" if reasons else "")
 
 

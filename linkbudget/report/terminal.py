@@ -13,6 +13,7 @@ from rich.table import Table
 from rich.text import Text
 
 from linkbudget.report.summary import (
+    fixed,
     margin_sentence,
     nm,
     overload_sentence,
@@ -32,7 +33,7 @@ def _db(value, signed=False):
         return "n/a"
     if math.isinf(value):
         return "blocked" if value > 0 else "-inf"
-    return f"{value:+.2f}" if signed else f"{value:.2f}"
+    return fixed(value, signed=signed)
 
 
 def _name_cell(row, index):

@@ -18,6 +18,7 @@ from linkbudget.config.fields import (
     quantity,
 )
 from linkbudget.config.ranges import RANGES
+from linkbudget.units import WAVELENGTH_EXAMPLE
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
 from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.optics import resolve_index
@@ -33,7 +34,7 @@ class Layer(Strict):
     material: str | None = None
     index: ComplexIndex | None = None
     thickness: quantity("length", bounds=RANGES["layer thickness"]) | None = None
-    quarter_wave: quantity("length", bounds=RANGES["wavelength"]) | None = None
+    quarter_wave: quantity("length", bounds=RANGES["wavelength"], example=WAVELENGTH_EXAMPLE) | None = None
     quarter_waves: integer(bounds=RANGES["quarter-wave count"]) | None = None
 
     @model_validator(mode="after")

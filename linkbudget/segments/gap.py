@@ -89,7 +89,14 @@ class Gap(Bulk):
         if message is not None:
             raise InputProblem(("beam", "waist"), f"the beam's waist is a radius, half its diameter: {message}")
         if self.index is None and self.material is None:
-            return self.model_copy(update={"material": "air"}).resolve(wavelength_m, files)
+            try:
+                return self.model_copy(update={"material": "air"}).resolve(wavelength_m, files)
+            except InputProblem as problem:
+                if problem.key_path != ("material",):
+                    raise
+                # placed at the gap itself: the `material` key the message would name is not written
+                raise InputProblem((), f"no `material` or `index` written, so the gap holds air (the default); "
+                                       f"{problem}", problem.hint) from None
         return super().resolve(wavelength_m, files)
 
     def path_length_m(self, case):

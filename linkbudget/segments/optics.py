@@ -13,7 +13,7 @@ from pydantic import PrivateAttr, model_validator
 from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, quantity
 from linkbudget.config.ranges import RANGES
 from linkbudget.materials.dispersion import MaterialRangeError
-from linkbudget.materials.library import MaterialError, catalog_names, load_material
+from linkbudget.materials.library import MaterialError, covering_hint, load_material
 from linkbudget.paths import PathRefused
 from linkbudget.segments.base import Row, SegmentSpec
 
@@ -32,24 +32,13 @@ def resolve_index(index, material, wavelength_m, files, key_path=()):
     try:
         return load_material(material, files=files).index(wavelength_m)
     except MaterialRangeError as error:
-        raise InputProblem((*key_path, "material"), str(error), _covering_hint(material, wavelength_m)) from None
+        hint = covering_hint(material, wavelength_m) or "write an explicit `index` (n or n+κj) for these wavelengths"
+        raise InputProblem((*key_path, "material"), str(error), hint) from None
     except MaterialError as error:
         raise InputProblem((*key_path, "material"), str(error),
                              "`linkbudget materials` lists the catalog") from None
     except PathRefused as error:
         raise InputProblem((*key_path, "material"), str(error), error.hint) from None
-
-
-def _covering_hint(material, wavelength_m):
-    """Catalog materials of the same family whose data cover every wavelength, as a hint."""
-    family = str(material).split("-")[0]
-    covering = []
-    for name in catalog_names():
-        low, high = load_material(name).valid_range_m
-        same_family = name.split("-")[0] == family and name != material
-        if same_family and low <= wavelength_m.min() and wavelength_m.max() <= high:
-            covering.append(name)
-    return f"catalog materials named {family}-* with data there: {', '.join(covering)}" if covering else None
 
 
 class OpticalSegment(SegmentSpec):

@@ -290,6 +290,48 @@ def test_min_margin_without_ratio_unit_exits_2(cli, links, command, value, phras
     assert "Traceback" not in result.output
 
 
+# --- materials -------------------------------------------------------------------------------------
+
+def test_materials_out_of_range_names_the_material_once_and_suggests_a_covering_one(cli):
+    # The catalog's silicon stops at 1450 nm; silicon-infrared covers 1550 nm, as the link-file
+    # error for the same material and wavelength suggests.
+    result = cli("materials", "silicon", "-w", "1550nm")
+    assert result.exit_code == 2
+    assert result.stderr.count("silicon:") == 1, result.stderr
+    assert "hint: " in result.stderr and "silicon-infrared" in result.stderr
+
+
+def test_materials_wavelength_without_unit_shows_a_wavelength_example(cli):
+    result = cli("materials", "silicon", "-w", "1550")
+    assert result.exit_code == 2
+    assert "missing unit" in result.stderr and "e.g. '1550 nm'" in result.stderr
+
+
+# --- numbers ---------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("command", [["run", "-f", "terminal"], ["run", "-f", "markdown"], ["run", "-f", "csv"],
+                                     ["check"]], ids=["terminal", "markdown", "csv", "check"])
+def test_a_value_that_rounds_to_zero_prints_without_a_minus_sign(cli, write_link, minimal_link, command):
+    # Received -1.5 dBm against a -1.499 dBm sensitivity: the margin is -0.001 dB, 0.00 to two places.
+    path = write_link(minimal_link.replace("sensitivity: -30 dBm", "sensitivity: -1.499 dBm"))
+    result = cli(*command, path)
+    assert result.exit_code == 1
+    assert "-0.00" not in result.stdout, result.stdout
+    assert not re.search(r"(^|,)-0(,|$)", result.stdout, re.M), result.stdout  # CSV's -0.0
+
+
+# --- help --------------------------------------------------------------------------------------------
+
+@pytest.mark.parametrize("command", [[], ["run"], ["check"], ["materials"]], ids=["app", "run", "check", "materials"])
+def test_help_names_no_python_types(cli, command):
+    # Only a list of choices may stand in angle brackets (``<terminal|json|...>``), never a type
+    # of the code such as <list[Path]>, <path> or <str>.
+    result = cli(*command, "--help")
+    assert result.exit_code == 0
+    bracketed = re.findall(r"<[^<>]*>", result.stdout)
+    assert all("|" in text for text in bracketed), bracketed
+
+
 # --- --version and the installed script ------------------------------------------------------------
 
 def test_version_prints_the_package_version(cli):

@@ -66,6 +66,8 @@ BILLION_LAUGHS = "a: &a [x, x, x, x, x, x, x, x, x]\n" + "".join(
 
 DEEP_NESTING = "title: " + "[" * 2000 + "]" * 2000 + "\n"
 
+HOP = "  - name: hop\n    kind: gap\n    length: 1 mm\n"
+
 WINDOW = "  - name: window\n    kind: medium\n    thickness: 1 mm\n"
 
 CASES = [
@@ -75,6 +77,17 @@ CASES = [
          "|\tpower", "(top level)", ("YAML syntax error", "indent with spaces, not tabs")),
     Case("bare-number-length", edit("length: 2 km", "length: 2000"),
          "length: |2000", "chain[0].length", ("missing unit", "units: nm, um")),
+    Case("bare-number-attenuation", edit("attenuation: 0.5 dB/km", "attenuation: [0.5]"),
+         "attenuation: |[0.5]", "chain[0].attenuation", ("expected an attenuation such as",)),
+    Case("angle-where-length", edit("length: 2 km", "length: 2 deg"),
+         "length: |2 deg", "chain[0].length", ("'2 deg' is an angle, expected a length",)),
+    Case("bare-number-wavelength", edit("wavelength: 1310 nm", "wavelength: 1550"),
+         "wavelength: |1550", "wavelength", ("missing unit", "e.g. '1550 nm'")),
+    Case("default-air-beyond-its-data", edit("wavelength: 1310 nm", "wavelength: 2000 nm") + HOP,
+         "  - |name: hop", "chain[2]", ("no `material` or `index` written", "air (the default)",
+                                        "2000 nm is outside", "explicit `index`")),
+    Case("written-air-beyond-its-data", edit("wavelength: 1310 nm", "wavelength: 2000 nm") + HOP
+         + "    material: air\n", "material: |air", "chain[2].material", ("2000 nm is outside", "explicit `index`")),
     Case("dB-where-dBm", edit("power: 0 dBm", "power: 0 dB"),
          "power: |0 dB", "source.power", ("is a ratio, expected a power", "dBm")),
     Case("unknown-unit", edit("length: 2 km", "length: 2 kmm"),
@@ -312,6 +325,16 @@ def test_load_collects_every_problem_of_a_file(minimal_link):
         linkbudget.load(text)
     paths = [format_key_path(problem.path) for problem in caught.value.problems]
     assert paths == ["chain[0].length", "chain[1].loss"]
+
+
+@pytest.mark.parametrize(("old", "new", "key"), [("length: 2 km", "lenght: 2 km", "length"),
+                                                ("    attenuation:", "    attenuaton:", "attenuation")])
+def test_misspelt_required_key_is_not_also_reported_missing(minimal_link, old, new, key):
+    with pytest.raises(linkbudget.ConfigError) as caught:
+        linkbudget.load(minimal_link.replace(old, new))
+    (problem,) = caught.value.problems
+    assert problem.hint == f"did you mean '{key}'?"
+    assert "missing" not in str(caught.value)
 
 
 def test_run_missing_file_exits_2(tmp_path, cli):
