@@ -18,10 +18,10 @@ from linkbudget.config.fields import (
     quantity,
 )
 from linkbudget.config.ranges import RANGES
-from linkbudget.units import WAVELENGTH_EXAMPLE
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
 from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.optics import resolve_index
+from linkbudget.units import WAVELENGTH_EXAMPLE
 
 
 class Layer(Strict):
