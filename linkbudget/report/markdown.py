@@ -1,5 +1,7 @@
 """The Markdown report, for a pull-request comment."""
 
+import numpy as np
+
 from linkbudget.report.summary import (
     fixed,
     margin_sentence,
@@ -22,6 +24,28 @@ def markdown_text(text):
     """User text for Markdown: one line (:func:`linkbudget.text.escaped`), every Markdown syntax
     character backslash-escaped and HTML written as character references, so it shows as typed."""
     return "".join(_HTML.get(char, f"\\{char}" if char in _MARKDOWN_SYNTAX else char) for char in escaped(text))
+
+
+#: Most wavelengths the Markdown margin table lists, so a long band fits a pull-request comment;
+#: JSON and CSV always carry every wavelength.
+MARKDOWN_MAX_WAVELENGTHS = 25
+
+
+def shown_wavelengths(result, limit=MARKDOWN_MAX_WAVELENGTHS):
+    """Indices of the wavelengths the margin table lists: all of them up to ``limit``; beyond it
+    both ends, the least and the largest worst-case margin, the highest best-case received power
+    (the overload side), and evenly spaced points to fill ``limit``."""
+    count = len(result.wavelength_m)
+    if count <= limit:
+        return list(range(count))
+    kept = {0, count - 1, result.governing_index, int(np.argmax(result.margin_db["worst"])),
+            int(np.argmax(result.received_dbm["best"]))}
+    spaced = np.linspace(0, count - 1, limit).round().astype(int)
+    for index in spaced:
+        if len(kept) >= limit:
+            break
+        kept.add(int(index))
+    return sorted(kept)
 
 
 def _cell(value):
@@ -53,12 +77,17 @@ def render(result):
           _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index]),
           markdown_text(row_note(row, index))]
          for n, row in enumerate(result.rows)], text_columns=2)
+    shown = shown_wavelengths(result)
     lines += ["", "Margins:", ""]
+    if len(shown) < len(result.wavelength_m):
+        lines += [f"{len(shown)} of {len(result.wavelength_m)} wavelengths shown: both ends, the least and the largest "
+                  "worst-case margin, the highest best-case power and evenly spaced points; JSON and CSV list "
+                  "every wavelength.", ""]
     lines += _table(
         ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB", "status"],
         [[nm(wavelength), _cell(result.received_dbm["typ"][i]), _cell(result.received_dbm["worst"][i]),
           _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i]), str(status[i])]
-         for i, wavelength in enumerate(result.wavelength_m)])
+         for i, wavelength in ((i, result.wavelength_m[i]) for i in shown)])
     lines += [""] + [f"- note: {markdown_text(note)}" for note in result.notes]
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
     return "\n".join(lines)
