@@ -57,9 +57,9 @@ class LinkResult:
     def cumulative_loss_db(self):
         """case -> cumulative loss after every row, shape (n_rows, n_wavelengths); +inf from a row
         of total internal reflection on (whatever the rows after it, which no light reaches)."""
-        blocked = np.logical_or.accumulate(self.total_internal_reflection, axis=0)
         with np.errstate(invalid="ignore"):
-            return {case: np.where(blocked, np.inf, np.cumsum(losses, axis=0)) for case, losses in self.loss_db.items()}
+            return {case: np.where(self.blocked, np.inf, np.cumsum(losses, axis=0))
+                    for case, losses in self.loss_db.items()}
 
     @cached_property
     def power_after_dbm(self):
@@ -95,6 +95,12 @@ class LinkResult:
         reflectance = np.array([row.detail.get("reflectance", np.zeros(self.wavelength_m.shape))
                                 for row in self.rows], dtype=float).reshape(len(self.rows), -1)
         return np.isposinf(self.loss_db["typ"]) & (reflectance >= 1 - 1e-9)
+
+    @cached_property
+    def blocked(self):
+        """Mask (n_rows, n_wavelengths): no light reaches past this row, a total internal
+        reflection at it or before it at that wavelength."""
+        return np.logical_or.accumulate(self.total_internal_reflection, axis=0)
 
     @property
     def closes(self):
@@ -392,11 +398,10 @@ def _not_finite_problem(result, link):
     """The placed :class:`Problem` of the first value of ``result`` that is not finite (NaN, an
     infinite gain, an overflow), or ``None``. Total internal reflection is the one allowed case:
     it blocks the light, and nothing after it at that wavelength is evaluated."""
-    blocked = np.logical_or.accumulate(result.total_internal_reflection, axis=0)
-    bad = np.zeros(blocked.shape, dtype=bool)
+    bad = np.zeros(result.blocked.shape, dtype=bool)
     for case in CASES:
-        bad |= ~np.isfinite(result.loss_db[case]) & ~blocked
-        bad |= ~np.isfinite(result.power_after_dbm[case]) & ~blocked
+        bad |= ~np.isfinite(result.loss_db[case]) & ~result.blocked
+        bad |= ~np.isfinite(result.power_after_dbm[case]) & ~result.blocked
     if not bad.any():
         return None
     number, index = (int(i) for i in np.argwhere(bad)[0])
