@@ -368,7 +368,8 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
     carries_tilt = segment.angle is not None or segment.parallel_faces
     inside = fresnel.refraction_angle_rad(n_before, index, angle) if carries_tilt else 0.0
-    bulk = segment.budget_row(wavelength_m, cos_inside=np.cos(inside), **around)
+    tangential_index = np.real(n_before) * np.sin(angle) if carries_tilt else 0.0  # Snell: conserved
+    bulk = segment.budget_row(wavelength_m, tangential_index=tangential_index, **around)
     rows.append(bulk)
     upstream = _Carrier(segment, inside, share, back_reflectance,
                         bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)

@@ -57,6 +57,46 @@ def absorption_coefficient_from_kappa(kappa, wavelength_m):
     return 4.0 * np.pi * kappa / np.asarray(wavelength_m, dtype=float)
 
 
+def absorption_along_normal_per_m(index, tangential_index, wavelength_m):
+    """Decay coefficient of the power flux along a medium's normal, for light crossing it at an angle.
+
+    Parameters
+    ----------
+    index : array_like of complex
+        Index N = n + iκ of the medium (κ ≥ 0).
+    tangential_index : array_like of float
+        β = n0·sin θ0, the tangential index of the light (real: it comes from a lossless medium;
+        Snell's law keeps it across parallel faces); 0 at normal incidence.
+    wavelength_m : array_like
+        Vacuum wavelength λ [m].
+
+    Returns
+    -------
+    numpy.ndarray
+        α_z [1/m]: a slab of thickness d passes exp(−α_z·d) of the power entering it.
+
+    Notes
+    -----
+    The refracted wave in an absorbing medium varies along the normal as exp(i·2π·q·z/λ) with
+    q = N cos θ = √(N² − β²) [1]_, so its flux decays as exp(−4π·Im(q)·z/λ):
+
+        α_z = 4π · Im √(N² − β²) / λ,
+
+    the single-pass factor of an incoherent slab [2]_. At normal incidence α_z = 4πκ/λ = α; for
+    κ ≪ n it tends to α / cos θ_r with θ_r the real refraction angle. For κ ≥ 0 and real β the
+    principal square root is the forward (decaying) wave.
+
+    References
+    ----------
+    .. [1] Born & Wolf, "Principles of Optics", 7th ed., 1999, §14.2 (waves in absorbing media).
+    .. [2] Byrnes, "Multilayer optical calculations", arXiv:1603.02720, 2016 (incoherent method).
+    """
+    index = np.asarray(index, dtype=complex)
+    _passive(index.imag, "extinction coefficient kappa")
+    normal_index = np.sqrt(index * index - np.asarray(tangential_index, dtype=float) ** 2)
+    return 4.0 * np.pi * np.maximum(normal_index.imag, 0.0) / np.asarray(wavelength_m, dtype=float)
+
+
 def kappa_from_absorption_coefficient(absorption_per_m, wavelength_m):
     """Extinction coefficient κ = αλ/(4π), the inverse of :func:`absorption_coefficient_from_kappa`.
 

@@ -331,11 +331,9 @@ def incoherent_slab(
 
         T = T1 τ T2 / (1 − R1' R2 τ²),   R = R1 + T1 T1' R2 τ² / (1 − R1' R2 τ²);
 
-    with ``multiple_reflections=False``, T = T1 τ T2 and R = R1. τ = exp(−α_z d) from the
-    lossy-medium flux law :func:`linkbudget.physics.flux.transmittance` with
-    α_z = 4π Im(N cos θ)/λ, the decay of the refracted wave along the slab normal [1]_
-    (cos θ complex from Snell's law). For κ ≪ n this is α d / cos θ_r with α = 4πκ/λ and θ_r
-    the real refraction angle, since Im√(N² − β²) ≈ κ/cos θ_r.
+    with ``multiple_reflections=False``, T = T1 τ T2 and R = R1. τ = exp(−α_z d) with
+    α_z = 4π Im√(N² − β²)/λ, the decay of the refracted wave along the slab normal
+    (:func:`linkbudget.physics.flux.absorption_along_normal_per_m`).
 
     References
     ----------
@@ -358,10 +356,7 @@ def incoherent_slab(
 
     beta = _tangential_index(n_in, angle)
     cos_in, cos_mid, cos_out = (_forward_cos(n, beta) for n in (n_in, n_mid, n_out))
-    # Decay index along the normal; the forward branch makes it >= 0 up to rounding.
-    kappa_normal = np.maximum(np.imag(n_mid * cos_mid), 0.0)
-    absorption_normal = flux.absorption_coefficient_from_kappa(kappa_normal, wavelength)
-    tau = flux.transmittance(absorption_normal, thickness)
+    tau = flux.transmittance(flux.absorption_along_normal_per_m(n_mid, beta, wavelength), thickness)
 
     reflectances, transmittances, cross_term = [], [], 0.0
     for pol in components:

@@ -19,7 +19,7 @@ from pydantic import model_validator
 
 from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, Strict
 from linkbudget.config.ranges import RANGES, mode_size_problem
-from linkbudget.physics import atmosphere, flux, gaussian
+from linkbudget.physics import atmosphere, gaussian
 from linkbudget.segments.base import (
     Mode,
     OffsetSpread,
@@ -102,14 +102,13 @@ class Gap(Bulk):
     def path_length_m(self, case):
         return self.length.at(case)
 
-    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
-        """Ambient loss through the flux law, with the visibility model's extinction if given."""
+    def absorption_per_m(self, wavelength_m, case):
+        """α [1/m] of the ambient medium, or the visibility model's extinction if given."""
         if self.visibility is None:
-            return super().loss_db(wavelength_m, case, cos_inside=cos_inside)
+            return super().absorption_per_m(wavelength_m, case)
         model = VISIBILITY_MODELS[self.visibility_model]
         visibility_m = self.visibility.at(case, larger_hurts=False)
-        alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=model(visibility_m, wavelength_m) / 1e3)
-        return flux.loss_db(alpha, self.path_length_m(case) / cos_inside)
+        return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=model(visibility_m, wavelength_m) / 1e3)
 
     def launched_mode(self, wavelength_m, mode_before):
         """The beam entering the gap: its ``beam``, else the mode of the segment before it."""
@@ -131,8 +130,8 @@ class Gap(Bulk):
         return coupling_losses_db(wavelength_m, launched, mode_after, offset=self.offset, tilt=self.tilt,
                                   separation=self.length, n=n)
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, cos_inside=1.0):
-        ambient = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, tangential_index=0.0):
+        ambient = {case: self.loss_db(wavelength_m, case, tangential_index=tangential_index) for case in CASES}
         beam = self.beam_losses_db(wavelength_m, mode_before, mode_after)
         if beam is None:
             return Row(self.name, self.kind, ambient, {"beam": "not evaluated: no launched beam or receiving side"})

@@ -108,7 +108,8 @@ class Fiber(OpticalSegment):
         radius_m = fiber.marcuse_mode_field_radius_m(core_radius_m, v)
         return Mode.circular({end: radius_m for end in SPREAD_ENDS})
 
-    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
+    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
+        """The guided path is not lengthened by a tilt (``tangential_index`` is ignored)."""
         alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
         return flux.loss_db(alpha, self.length.at(case))
 
@@ -160,8 +161,16 @@ class Bulk(OpticalSegment):
     def path_length_m(self, case):
         raise NotImplementedError
 
-    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
-        return flux.loss_db(self.absorption_per_m(wavelength_m, case), self.path_length_m(case) / cos_inside)
+    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
+        """Bulk loss [dB] of one pass: α·d at normal incidence; crossed at an angle, the flux decays
+        along the normal by α_z (:func:`linkbudget.physics.flux.absorption_along_normal_per_m`) with
+        this case's index N = Re(N) + iκ, κ = αλ/(4π) (one complex index per medium)."""
+        alpha = self.absorption_per_m(wavelength_m, case)
+        index = self.medium_index()
+        if index is not None and np.any(tangential_index):
+            kappa = flux.kappa_from_absorption_coefficient(alpha, wavelength_m)
+            alpha = flux.absorption_along_normal_per_m(index.real + 1j * kappa, tangential_index, wavelength_m)
+        return flux.loss_db(alpha, self.path_length_m(case))
 
 
 class Medium(Bulk):

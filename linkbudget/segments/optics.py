@@ -71,11 +71,11 @@ class OpticalSegment(SegmentSpec):
         """Complex index over the wavelength axis, or ``None`` if the segment carries no medium."""
         return self._index
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, cos_inside=1.0):
-        """The bulk row; ``cos_inside`` is the cosine of the ray angle inside (oblique path L/cos)."""
-        losses = {case: self.loss_db(wavelength_m, case, cos_inside=cos_inside) for case in CASES}
+    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, tangential_index=0.0):
+        """The bulk row; ``tangential_index`` β = n0·sin θ0 of the light crossing it (0: normal)."""
+        losses = {case: self.loss_db(wavelength_m, case, tangential_index=tangential_index) for case in CASES}
         return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
 
-    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
-        """Bulk loss [dB] over the wavelength axis along a path tilted to cos θ = ``cos_inside``."""
+    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
+        """Bulk loss [dB] over the wavelength axis, for light of tangential index β (0: normal)."""
         raise NotImplementedError

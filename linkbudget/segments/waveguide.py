@@ -122,8 +122,8 @@ class Waveguide(OpticalSegment):
                for part, features in counted.items()},
         }
 
-    def loss_db(self, wavelength_m, case, *, cos_inside=1.0):
-        """Sum of :meth:`loss_parts_db`; ``cos_inside`` is ignored (the mode follows the guide)."""
+    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
+        """Sum of :meth:`loss_parts_db`; ``tangential_index`` is ignored (the mode follows the guide)."""
         return sum(self.loss_parts_db(wavelength_m, case).values())
 
     def resolve(self, wavelength_m, base_dir):

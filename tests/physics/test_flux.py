@@ -2,6 +2,7 @@
 
 import numpy as np
 import pytest
+import tmm
 from numpy.testing import assert_allclose
 
 from linkbudget.physics import flux
@@ -80,3 +81,23 @@ def test_loss_db_negative_length_raises():
 
 def test_attenuation_db_per_m_round_trip():
     assert_allclose(flux.absorption_from_attenuation_db_per_m(flux.attenuation_db_per_m_from_absorption(2.5)), 2.5)
+
+
+# ---- decay along the normal at oblique incidence ----
+
+
+def test_absorption_along_normal_at_normal_incidence_is_the_flux_law():
+    # β = 0: α_z = 4π·Im(N)/λ = 4πκ/λ (Born & Wolf).
+    index = np.array([1.45 + 1e-6j, 3.5 + 0.02j, 1.35 + 0.45j])
+    assert_allclose(flux.absorption_along_normal_per_m(index, 0.0, 1550e-9), 4 * np.pi * index.imag / 1550e-9,
+                    rtol=1e-12)
+
+
+@pytest.mark.parametrize("index", [1.35 + 0.45j, 2.6 + 0.12j, 0.2 + 7.0j])
+@pytest.mark.parametrize("angle_deg", [30.0, 60.0, 72.0, 85.0])
+def test_absorption_along_normal_matches_tmm_complex_refraction_angle(index, angle_deg):
+    # tmm.snell gives the complex angle θ with N·sin θ = sin θ0 (from vacuum); the wave decays along
+    # the normal by Im(N cos θ) (Born & Wolf §14.2; the single-pass factor of tmm.inc_tmm).
+    angle_rad = np.deg2rad(angle_deg)
+    expected = 4 * np.pi * np.imag(index * np.cos(tmm.snell(1.0, index, angle_rad))) / 1550e-9
+    assert_allclose(flux.absorption_along_normal_per_m(index, np.sin(angle_rad), 1550e-9), expected, rtol=1e-12)
