@@ -158,36 +158,84 @@ def _share_row(name, kind, share, transmittance, **detail):
     return Row(name, kind, losses, weighted), after
 
 
+class _RowNote(ValidityWarning):
+    """A validity note that belongs to an inserted row (a face or a coating), under its name."""
+
+    def __init__(self, owner, message):
+        super().__init__(message)
+        self.owner = owner
+
+
+def _recorded(function, **kwargs):
+    """``function(**kwargs)`` and the warnings it raised."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        value = function(**kwargs)
+    return value, caught
+
+
+def _polarized(row_name, share, function, **kwargs):
+    """pol -> ``function(polarization=pol, **kwargs)`` for s and p (their powers are followed apart).
+
+    Its :class:`ValidityWarning` s are raised once, under ``row_name``, for the light the row
+    carries (the typical case's shares): one polarization's own, or for both those of unpolarized
+    light, so a p-polarized face never quotes its s value.
+    """
+    values, caught = {}, {}
+    for pol in _POLARIZATIONS:
+        values[pol], caught[pol] = _recorded(function, polarization=pol, **kwargs)
+    carried = [pol for pol in _POLARIZATIONS if np.any(share["typ"][pol] > 0)]
+    if len(carried) != 1 and any(caught.values()):
+        _, caught["unpolarized"] = _recorded(function, polarization="unpolarized", **kwargs)
+        carried = ["unpolarized"]
+    for warning in (w for pol in carried for w in caught[pol]):
+        is_note = issubclass(warning.category, ValidityWarning)
+        warnings.warn(_RowNote(row_name, str(warning.message)) if is_note else warning.message, stacklevel=2)
+    return values
+
+
+def _quietly(function, **kwargs):
+    """pol -> ``function(polarization=pol, **kwargs)``, its validity notes dropped (a face seen from
+    inside, whose reflectance only enters the multiple-reflection sum, checked against tmm)."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        return {pol: function(polarization=pol, **kwargs) for pol in _POLARIZATIONS}
+
+
 def _face(name_from, name_to, n_from, n_to, angle_rad, share, need_back):
     """A bare interface: its row, the shares after it, its reflectance, and (if ``need_back``) its
     reflectance seen from the far side, each per polarization."""
-    inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
-    reflectance, transmittance, back = {}, {}, {} if need_back else None
-    for pol in _POLARIZATIONS:
-        reflectance[pol], transmittance[pol] = fresnel.interface_power_coefficients(
-            n_from, n_to, angle_rad=angle_rad, polarization=pol)
-        if need_back:
-            back[pol], _ = fresnel.interface_power_coefficients(n_to, n_from, angle_rad=inside, polarization=pol)
-    row, share = _share_row(f"{name_from} → {name_to}", "interface", share, transmittance, reflectance=reflectance)
+    name = f"{name_from} → {name_to}"
+    forward = _polarized(name, share, fresnel.interface_power_coefficients, n1=n_from, n2=n_to, angle_rad=angle_rad)
+    reflectance = {pol: r for pol, (r, _) in forward.items()}
+    back = None
+    if need_back:
+        inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
+        back = {pol: r for pol, (r, _) in _quietly(fresnel.interface_power_coefficients, n1=n_to, n2=n_from,
+                                                   angle_rad=inside).items()}
+    row, share = _share_row(name, "interface", share, {pol: t for pol, (_, t) in forward.items()},
+                            reflectance=reflectance)
     return [row], share, reflectance, back
 
 
 def _coating(coating, wavelength_m, n_up, n_down, angle_rad, share, need_back):
     """A coating's row, the shares after it, its reflectance, and (if ``need_back``) its
     reflectance seen from the downstream medium, each per polarization."""
-    reflectance, transmittance, absorptance, back = {}, {}, {}, {} if need_back else None
-    for pol in _POLARIZATIONS:
-        forward = thinfilm.coherent_stack(coating.layer_index, coating.thickness_m, wavelength_m,
-                                          n_incident=n_up, n_exit=n_down, angle_rad=angle_rad, polarization=pol)
-        reflectance[pol], transmittance[pol] = forward.reflectance, forward.transmittance
-        absorptance[pol] = np.maximum(forward.absorptance, 0.0)  # 1 - R - T rounds to -1e-16 when lossless
-        if need_back:
-            back[pol] = thinfilm.coherent_stack(
-                coating.layer_index[::-1], coating.thickness_m[::-1], wavelength_m, n_incident=n_down,
-                n_exit=n_up, angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad),
-                polarization=pol).reflectance
-    row, share = _share_row(coating.name, "coating", share, transmittance, reflectance=reflectance,
-                            absorptance=absorptance)
+    forward = _polarized(coating.name, share, thinfilm.coherent_stack, layer_index=coating.layer_index,
+                         thickness_m=coating.thickness_m, wavelength_m=wavelength_m, n_incident=n_up,
+                         n_exit=n_down, angle_rad=angle_rad)
+    reflectance = {pol: response.reflectance for pol, response in forward.items()}
+    back = None
+    if need_back:
+        back = {pol: response.reflectance for pol, response in _quietly(
+            thinfilm.coherent_stack, layer_index=coating.layer_index[::-1], thickness_m=coating.thickness_m[::-1],
+            wavelength_m=wavelength_m, n_incident=n_down, n_exit=n_up,
+            angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad)).items()}
+    # 1 - R - T rounds to -1e-16 when lossless
+    absorptance = {pol: np.maximum(response.absorptance, 0.0) for pol, response in forward.items()}
+    row, share = _share_row(coating.name, "coating", share,
+                            {pol: response.transmittance for pol, response in forward.items()},
+                            reflectance=reflectance, absorptance=absorptance)
     return [row], share, reflectance, back
 
 
@@ -279,8 +327,8 @@ def _noted(notes, owner, function, *args):
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", ValidityWarning)
         value = function(*args)
-    messages = dict.fromkeys(str(w.message) for w in caught if issubclass(w.category, ValidityWarning))
-    notes.extend(f"{owner}: {message}" for message in messages)
+    notes.extend(f"{getattr(w.message, 'owner', owner)}: {w.message}" for w in caught
+                 if issubclass(w.category, ValidityWarning))
     return value
 
 
@@ -324,7 +372,7 @@ def budget_rows(segments, wavelength_m):
                   "mode_after": modes[position + 1] if position + 1 < len(segments) else None}
         upstream, joint, coating = _noted(notes, segment.name, _add_segment_rows, rows, segment, around,
                                           wavelength_m, upstream, joint, coating, lone[position])
-    return tuple(rows), tuple(notes)
+    return tuple(rows), tuple(dict.fromkeys(notes))  # a note said once, where its owner is first met
 
 
 def _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle, share):

@@ -5,6 +5,8 @@ so, with the number the note quotes checked against a closed form computed here.
 """
 
 import numpy as np
+import pytest
+import tmm
 from scipy import special
 
 from tests.segments.linktext import evaluate
@@ -26,6 +28,8 @@ def test_fibre_above_lp11_cutoff_is_noted_not_single_mode():
     for owner in ("f1", "f2"):
         notes = notes_of(result, owner)
         assert any("not single-mode" in note and f"{v:.4g}" in note for note in notes), notes
+        # one wavelength: one V, not a range "from 3.648 to 3.648"
+        assert any(f"1.2 <= V <= 2.4; got V {v:.4g}" in note for note in notes), notes
 
 
 def test_fibre_below_lp11_cutoff_has_no_single_mode_note():
@@ -35,3 +39,46 @@ def test_fibre_below_lp11_cutoff_has_no_single_mode_note():
     result = evaluate([{"name": "f1", **fibre}, {"name": "joint", "kind": "splice", "offset": "1 um"},
                        {"name": "f2", **fibre}])
     assert result.notes == ()
+
+
+def incident_cross_term(polarization, index, angle_rad, wavelength_nm=1550.0):
+    """Energy-balance shift at the exit face of an absorbing film, from tmm's amplitude r: the
+    incident and reflected waves' cross term in Byrnes' "power entering" (Byrnes 2016),
+    2·Im(r)·Im(u)/Re(u), u = N·cos θ (s) or N·cos θ* (p), minus sign for p."""
+    inside = tmm.snell(1.0, index, angle_rad)
+    r = tmm.coh_tmm(polarization, [index, 1.0], [np.inf, np.inf], inside, wavelength_nm)["r"]
+    u = index * (np.cos(inside) if polarization == "s" else np.conj(np.cos(inside)))
+    return abs(2 * np.imag(r) * u.imag / u.real)
+
+
+def absorbing_film(polarization):
+    return [{"name": "a", "kind": "gap", "length": "1 mm", "index": 1.0},
+            {"name": "film", "kind": "medium", "thickness": "0.8 um", "index": "1.35+0.45j", "angle": "72 deg",
+             "polarization": polarization},
+            {"name": "b", "kind": "gap", "length": "1 mm", "index": 1.0}]
+
+
+@pytest.mark.parametrize("polarization", ["s", "p", "unpolarized"])
+def test_face_from_an_absorbing_film_is_noted_once_with_the_light_it_carries(polarization):
+    # One note on the exit face, under the face's own name, quoting the shift of the polarization
+    # the light has (unpolarized: the larger of s and p), never the other one's value.
+    shifts = {pol: incident_cross_term(pol, 1.35 + 0.45j, np.deg2rad(72.0)) for pol in ("s", "p")}
+    assert abs(shifts["s"] - shifts["p"]) > 0.1  # the two would print differently
+    expected = max(shifts.values()) if polarization == "unpolarized" else shifts[polarization]
+    (note,) = notes_of(evaluate(absorbing_film(polarization)), "film → b")
+    assert f"up to {expected:.3g} of the incident power" in note
+    assert not [n for n in evaluate(absorbing_film(polarization)).notes if n.startswith("b: ")]
+
+
+def test_a_film_summing_its_reflections_has_one_note_on_its_exit_face():
+    # At normal incidence with multiple reflections the entry face is also evaluated from inside
+    # the film (for the round trips); that reflectance is checked against tmm.inc_tmm elsewhere and
+    # is no face of the budget, so the only note is the exit face's, once.
+    chain = absorbing_film("unpolarized")
+    del chain[1]["angle"], chain[1]["polarization"]
+    chain[1]["multiple_reflections"] = True
+    result = evaluate(chain)
+    absorbing = [note for note in result.notes if "incident medium absorbs" in note]
+    expected = incident_cross_term("s", 1.35 + 0.45j, 0.0)
+    assert absorbing == [next(n for n in absorbing if n.startswith("film → b: "))]
+    assert f"up to {expected:.3g} of the incident power" in absorbing[0]

@@ -118,8 +118,9 @@ def _warn_if_multimode(v):
 
 def _warn_outside(v, low, high, what):
     if np.any((v < low) | (v > high)):
+        got = f"{v.min():.4g}" if f"{v.min():.4g}" == f"{v.max():.4g}" else f"from {v.min():.4g} to {v.max():.4g}"
         warnings.warn(
-            f"{what} is stated to be accurate for {low} <= V <= {high}; got V from {v.min():.4g} to {v.max():.4g}",
+            f"{what} is stated to be accurate for {low} <= V <= {high}; got V {got}",
             ValidityWarning,
             stacklevel=3,
         )
