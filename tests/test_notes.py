@@ -82,3 +82,15 @@ def test_a_film_summing_its_reflections_has_one_note_on_its_exit_face():
     expected = incident_cross_term("s", 1.35 + 0.45j, 0.0)
     assert absorbing == [next(n for n in absorbing if n.startswith("film → b: "))]
     assert f"up to {expected:.3g} of the incident power" in absorbing[0]
+
+
+@pytest.mark.parametrize("model", ["kim", "kruse"])
+def test_visibility_model_far_outside_its_wavelengths_is_noted(model):
+    # Kruse's formula was devised for the visible and near infrared (Pierce, Ramaprasad &
+    # Eisenberg, Proc. SPIE 4530, 2001); Kim et al. measured at 785 and 1550 nm (Proc. SPIE 4214,
+    # 2001). At 1550 nm no note; at 4 µm and 10 µm a note naming the model and the wavelengths.
+    gap = {"name": "path", "kind": "gap", "length": "500 m", "index": 1.0, "visibility": "10 km",
+           "visibility_model": model}
+    assert evaluate([gap]).notes == ()
+    (note,) = notes_of(evaluate([gap], "channels: [1550 nm, 4000 nm, 10000 nm]"), "path")
+    assert f"{model.capitalize()}'s visibility model" in note and "from 4000 nm to 10000 nm" in note

@@ -19,24 +19,44 @@ References
    (2001), doi:10.1117/12.417512 (title and DOI from memory).
 .. [2] P. W. Kruse, L. D. McGlauchlin and R. B. McQuistan, "Elements of Infrared Technology:
    Generation, Transmission, and Detection", Wiley, 1962 (from memory).
+.. [3] R. M. Pierce, J. Ramaprasad and E. C. Eisenberg, "Optical attenuation in fog and clouds",
+   Proc. SPIE 4530 (2001), doi:10.1117/12.449815: the Kruse formula "was originally devised to
+   relate visibility to optical attenuation, from the visible to the near infrared".
 """
+
+import warnings
 
 import numpy as np
 
 from linkbudget.physics.checks import positive
 from linkbudget.physics.decibel import DB_PER_NEPER
+from linkbudget.physics.validity import ValidityWarning, span_text
 
 #: ln(1/0.02) rounded as published in [1]: the 2 % contrast threshold defining visibility.
 _VISIBILITY_CONSTANT = 3.91
 _REFERENCE_WAVELENGTH_M = 550e-9
+#: The visible and near infrared, where Kruse's formula was devised [3] and Kim et al. measured
+#: (785 and 1550 nm) [1]; 2 µm is where aerosol scattering is still computed in the same way (a
+#: bound of common practice, not a stated limit).
+VISIBILITY_MODEL_RANGE_M = (400e-9, 2000e-9)
 
 
 def _visibility_km(visibility_m):
     return positive(visibility_m, "visibility") / 1e3
 
 
+def _warn_outside_wavelengths(wavelength_m, model):
+    """Warn (ValidityWarning) at wavelengths outside :data:`VISIBILITY_MODEL_RANGE_M`."""
+    low, high = VISIBILITY_MODEL_RANGE_M
+    wavelength_m = np.atleast_1d(wavelength_m)
+    outside = wavelength_m[(wavelength_m < low) | (wavelength_m > high)]
+    if outside.size:
+        warnings.warn(f"{model}'s visibility model is stated for the visible and near infrared "
+                      f"({low * 1e9:g}-{high * 1e9:g} nm); used here at {span_text(outside * 1e9, 6, ' nm')}",
+                      ValidityWarning, stacklevel=3)
+
+
 def _attenuation_db_per_km(visibility_km, wavelength_m, exponent):
-    wavelength_m = positive(wavelength_m, "wavelength")
     # σ = (3.91/V)(λ/550 nm)^−q in 1/km [1], converted to dB/km
     extinction_per_km = _VISIBILITY_CONSTANT / visibility_km * (wavelength_m / _REFERENCE_WAVELENGTH_M) ** -exponent
     return DB_PER_NEPER * extinction_per_km
@@ -56,6 +76,11 @@ def kim_attenuation_db_per_km(visibility_m, wavelength_m):
     -------
     numpy.ndarray
         Specific attenuation [dB/km], broadcast over the inputs.
+
+    Warns
+    -----
+    ValidityWarning
+        At wavelengths outside :data:`VISIBILITY_MODEL_RANGE_M` (visible and near infrared).
 
     Notes
     -----
@@ -78,6 +103,8 @@ def kim_attenuation_db_per_km(visibility_m, wavelength_m):
     .. [1] I. I. Kim, B. McArthur and E. Korevaar, Proc. SPIE 4214, 26 (2001).
     """
     v_km = _visibility_km(visibility_m)
+    wavelength_m = positive(wavelength_m, "wavelength")
+    _warn_outside_wavelengths(wavelength_m, "Kim")
     exponent = np.select(
         [v_km > 50.0, v_km > 6.0, v_km > 1.0, v_km > 0.5],
         [1.6, 1.3, 0.16 * v_km + 0.34, v_km - 0.5],
@@ -101,6 +128,11 @@ def kruse_attenuation_db_per_km(visibility_m, wavelength_m):
     numpy.ndarray
         Specific attenuation [dB/km], broadcast over the inputs.
 
+    Warns
+    -----
+    ValidityWarning
+        At wavelengths outside :data:`VISIBILITY_MODEL_RANGE_M` (visible and near infrared).
+
     Notes
     -----
     σ = (3.91/V)·(λ/550 nm)^(−q) [1/km], attenuation 10·log10(e)·σ, with V in km and
@@ -115,5 +147,7 @@ def kruse_attenuation_db_per_km(visibility_m, wavelength_m):
     .. [2] I. I. Kim, B. McArthur and E. Korevaar, Proc. SPIE 4214, 26 (2001).
     """
     v_km = _visibility_km(visibility_m)
+    wavelength_m = positive(wavelength_m, "wavelength")
+    _warn_outside_wavelengths(wavelength_m, "Kruse")
     exponent = np.select([v_km > 50.0, v_km > 6.0], [1.6, 1.3], default=0.585 * np.cbrt(v_km))
     return _attenuation_db_per_km(v_km, wavelength_m, exponent)

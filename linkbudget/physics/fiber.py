@@ -27,7 +27,7 @@ import warnings
 import numpy as np
 
 from linkbudget.physics.checks import positive
-from linkbudget.physics.validity import ValidityWarning
+from linkbudget.physics.validity import ValidityWarning, span_text
 
 #: First zero of the Bessel function J0: the LP11 cut-off V number of a step-index fibre.
 LP11_CUTOFF_V = 2.404825557695773
@@ -118,9 +118,8 @@ def _warn_if_multimode(v):
 
 def _warn_outside(v, low, high, what):
     if np.any((v < low) | (v > high)):
-        got = f"{v.min():.4g}" if f"{v.min():.4g}" == f"{v.max():.4g}" else f"from {v.min():.4g} to {v.max():.4g}"
         warnings.warn(
-            f"{what} is stated to be accurate for {low} <= V <= {high}; got V {got}",
+            f"{what} is stated to be accurate for {low} <= V <= {high}; got V {span_text(v)}",
             ValidityWarning,
             stacklevel=3,
         )
