@@ -21,12 +21,12 @@ from linkbudget.cautions import CAUTIONS
 from linkbudget.config.fields import CASES, range_notes
 from linkbudget.config.ranges import index_notes
 from linkbudget.config.source import ConfigError, Problem
-from linkbudget.physics import fresnel, thinfilm
+from linkbudget.physics import coherence, fresnel, thinfilm
 from linkbudget.physics.decibel import (
     loss_db_from_transmittance,
     transmittance_from_loss_db,
 )
-from linkbudget.physics.validity import ValidityWarning
+from linkbudget.physics.validity import ValidityWarning, span_text
 from linkbudget.segments.base import Row
 
 
@@ -159,7 +159,8 @@ def _share_row(name, kind, share, transmittance, **detail):
 
 
 class _RowNote(ValidityWarning):
-    """A validity note that belongs to an inserted row (a face or a coating), under its name."""
+    """A validity note that belongs to another row than the segment being added (a face, a
+    coating, the medium before it), under that row's name."""
 
     def __init__(self, owner, message):
         super().__init__(message)
@@ -248,6 +249,7 @@ class _Carrier:
     share: dict  # case -> polarization -> power share of the light inside it
     back_reflectance: dict | None  # polarization -> of its entry face, seen from inside
     single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
+    entered_through_face: bool = False  # a face (or coating) was inserted before it
 
 
 def _joint_faces(upstream, segment, joint, coating, wavelength_m, angle_rad, share):
@@ -345,7 +347,52 @@ def segment_notes(segment):
     return notes
 
 
-def budget_rows(segments, wavelength_m):
+def _length_text(length_m):
+    return f"{length_m * 1e6:.4g} µm" if length_m < 1e-3 else f"{length_m * 1e3:.4g} mm"
+
+
+def _coherence_problem(thickness_m, n_real, wavelength_m, spectral_width_m):
+    """Why a medium between two faces may not be summed incoherently, or ``None``.
+
+    With the source's spectral width: the medium is thinner than the coherence length in it,
+    λ²/(n·Δλ) (:func:`linkbudget.physics.coherence.coherence_length_m`). Without it: thinner
+    than :data:`~linkbudget.physics.coherence.THICK_MEDIUM_WAVELENGTHS` wavelengths.
+    """
+    thick = _length_text(thickness_m)
+    if spectral_width_m is None:
+        if np.all(thickness_m >= coherence.THICK_MEDIUM_WAVELENGTHS * wavelength_m):
+            return None
+        return (f"{thick} thick, under {coherence.THICK_MEDIUM_WAVELENGTHS} wavelengths: its two faces are summed "
+                "without interference, which holds only if the source's coherence length is shorter; give "
+                "`source.spectral_width` to check it")
+    length_m = coherence.coherence_length_m(wavelength_m, spectral_width_m, n=n_real)
+    if np.all(thickness_m >= length_m):
+        return None
+    return (f"{thick} thick, thinner than the source's coherence length in it ({span_text(length_m * 1e3, 4, ' mm')}"
+            f", λ²/(n·Δλ)): the reflections at its two faces interfere, and the fringes this makes in its "
+            "transmittance are averaged out here")
+
+
+def _note_coherence(owner, thickness_m, n_real, wavelength_m, spectral_width_m):
+    """Raise the note of :func:`_coherence_problem` for ``owner``, if any."""
+    problem = _coherence_problem(thickness_m, n_real, wavelength_m, spectral_width_m)
+    if problem is not None:
+        warnings.warn(_RowNote(owner, problem), stacklevel=2)
+
+
+def _note_faced_gaps(upstream, joint, wavelength_m, spectral_width_m):
+    """The coherence notes of the media just left between two faces: the medium ``upstream``
+    (entered through a face, a plate with parallel faces) and an air-gap ``joint``'s gap."""
+    if upstream.entered_through_face and upstream.segment.parallel_faces:
+        thinnest_m = min(float(np.min(upstream.segment.path_length_m(case))) for case in CASES)
+        _note_coherence(upstream.segment.name, thinnest_m, np.real(upstream.segment.medium_index()),
+                        wavelength_m, spectral_width_m)
+    if joint is not None and joint.joint_type == "air-gap" and joint.gap is not None and joint.gap.low > 0:
+        _note_coherence(joint.name, joint.gap.low, np.real(joint.gap_medium_index()), wavelength_m,
+                        spectral_width_m)
+
+
+def budget_rows(segments, wavelength_m, spectral_width_m=None):
     """The budget rows: every segment, with the interfaces and coatings between media inserted.
 
     Between two consecutive segments that carry a medium the engine inserts their interface
@@ -361,7 +408,8 @@ def budget_rows(segments, wavelength_m):
     interface is added before the first segment or after the last.
 
     Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised by each segment's
-    own model (its mode, its loss), prefixed by its name.
+    own model (its mode, its loss), prefixed by its name, and the coherence notes of media
+    between two faces (``spectral_width_m``: the source's, if given).
     """
     notes = [f"{segment.name}: {note}" for segment in segments for note in segment_notes(segment)]
     modes = [_noted(notes, segment.name, segment.mode, wavelength_m) for segment in segments]
@@ -371,7 +419,7 @@ def budget_rows(segments, wavelength_m):
         around = {"mode_before": modes[position - 1] if position else None,
                   "mode_after": modes[position + 1] if position + 1 < len(segments) else None}
         upstream, joint, coating = _noted(notes, segment.name, _add_segment_rows, rows, segment, around,
-                                          wavelength_m, upstream, joint, coating, lone[position])
+                                          wavelength_m, upstream, joint, coating, lone[position], spectral_width_m)
     return tuple(rows), tuple(dict.fromkeys(notes))  # a note said once, where its owner is first met
 
 
@@ -385,10 +433,11 @@ def _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle,
     if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
         reflections, share = _multiple_reflections_row(upstream, reflectance, share)
         rows.append(reflections)
-    return share, back_reflectance
+    return share, back_reflectance, bool(joint_rows)
 
 
-def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating, lone=False):
+def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating, lone=False,
+                      spectral_width_m=None):
     """Append the rows of ``segment`` (and the faces before it); return the new state.
 
     A ``lone`` window has its two faces to the air around it (:data:`SURROUNDING_INDEX`).
@@ -407,10 +456,14 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     surroundings = _Surroundings(np.full(np.shape(wavelength_m), SURROUNDING_INDEX, dtype=complex)) if lone else None
     if lone:
         upstream, joint, coating = _Carrier(surroundings, 0.0, share, None, None), None, None
+    entered_through_face = False
     if upstream is not None:
         angle = upstream.exit_angle_rad if segment.angle is None else segment.angle
         share = upstream.share if segment.polarization is None else share
-        share, back_reflectance = _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle, share)
+        share, back_reflectance, entered_through_face = _faces_between(
+            rows, upstream, segment, joint, coating, wavelength_m, angle, share)
+        if entered_through_face:
+            _note_faced_gaps(upstream, joint, wavelength_m, spectral_width_m)
     n_before = index if upstream is None else upstream.segment.medium_index()
     # a tilt carries on through media in contact (their faces are parallel to the tilted one);
     # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
@@ -420,9 +473,11 @@ def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coat
     bulk = segment.budget_row(wavelength_m, tangential_index=tangential_index, **around)
     rows.append(bulk)
     upstream = _Carrier(segment, inside, share, back_reflectance,
-                        bulk.loss_db if getattr(segment, "multiple_reflections", False) else None)
+                        bulk.loss_db if getattr(segment, "multiple_reflections", False) else None,
+                        entered_through_face)
     if lone:
         _faces_between(rows, upstream, surroundings, None, None, wavelength_m, inside, share)
+        _note_faced_gaps(upstream, None, wavelength_m, spectral_width_m)
         return None, None, None
     return upstream, None, None
 
@@ -490,7 +545,7 @@ def evaluate(link, *, required_margin_db=None):
     """
     spec = link.spec
     wavelength_m = spec.wavelengths_m()
-    rows, notes = budget_rows(link.segments, wavelength_m)
+    rows, notes = budget_rows(link.segments, wavelength_m, spec.source.spectral_width)
     notes = (*(f"{part}: {note}" for part in ("source", "receiver") for note in range_notes(getattr(spec, part))),
              *notes)
     power = spec.source.power

@@ -4,12 +4,15 @@ Each test builds a link whose physics is outside a model's range and checks that
 so, with the number the note quotes checked against a closed form computed here.
 """
 
+import re
+
 import numpy as np
 import pytest
 import tmm
 from scipy import special
 
-from tests.segments.linktext import evaluate
+import linkbudget
+from tests.segments.linktext import evaluate, link_text
 
 
 def notes_of(result, owner):
@@ -94,3 +97,55 @@ def test_visibility_model_far_outside_its_wavelengths_is_noted(model):
     assert evaluate([gap]).notes == ()
     (note,) = notes_of(evaluate([gap], "channels: [1550 nm, 4000 nm, 10000 nm]"), "path")
     assert f"{model.capitalize()}'s visibility model" in note and "from 4000 nm to 10000 nm" in note
+
+
+# ---- media summed incoherently while the light may be coherent across them ----
+
+
+def faced_chain(thickness):
+    return [{"name": "a", "kind": "gap", "length": "1 mm", "index": 1.0},
+            {"name": "plate", "kind": "medium", "thickness": thickness, "index": 1.5},
+            {"name": "b", "kind": "gap", "length": "1 mm", "index": 1.0}]
+
+
+def with_width(chain, width):
+    text = link_text(chain).replace("power: 0 dBm", f"power: 0 dBm\n  spectral_width: {width}")
+    return linkbudget.evaluate(linkbudget.load(text))
+
+
+def test_thin_plate_without_spectral_width_is_noted_under_100_wavelengths():
+    # 100 λ = 155 µm at 1550 nm (common practice bound): a 20 µm plate is noted, a 1 mm one not.
+    (note,) = notes_of(evaluate(faced_chain("20 um")), "plate")
+    assert "20 µm thick, under 100 wavelengths" in note and "spectral_width" in note
+    assert evaluate(faced_chain("1 mm")).notes == ()
+
+
+def test_plate_thinner_than_the_coherence_length_is_noted():
+    # L_c = λ²/(n·Δλ) = (1550 nm)²/(1.5 · 0.1 nm) = 16.02 mm (Hecht 2017 §12.1, from memory):
+    # a 3 mm plate is inside it, a 30 mm plate is not; a 1 nm wide source (1.6 mm) clears 3 mm.
+    coherence_mm = (1550e-9) ** 2 / (1.5 * 0.1e-9) * 1e3
+    (note,) = notes_of(with_width(faced_chain("3 mm"), "0.1 nm"), "plate")
+    quoted_mm = float(re.search(r"coherence length in it \(([0-9.]+) mm", note).group(1))
+    assert quoted_mm == pytest.approx(coherence_mm, rel=1e-3) and "interfere" in note
+    assert with_width(faced_chain("30 mm"), "0.1 nm").notes == ()
+    assert with_width(faced_chain("3 mm"), "1 nm").notes == ()
+
+
+def test_plate_without_faces_is_not_noted():
+    # Between two media of its own index there are no faces and nothing to interfere.
+    chain = faced_chain("20 um")
+    chain[0]["index"] = chain[2]["index"] = 1.5
+    assert evaluate(chain).notes == ()
+
+
+def test_air_gap_joint_thinner_than_the_coherence_length_is_noted():
+    # Two fibre ends of index 1.45 through a 10 µm air gap: an etalon of L_c = λ²/Δλ = 24.03 mm
+    # in air for a 0.1 nm source (n = 1, default index of the gap medium taken from catalog air).
+    fibre = {"kind": "fiber", "length": "1 m", "attenuation": "0.5 dB/km", "index": 1.45,
+             "mode_field_diameter": "10.4 um"}
+    chain = [{"name": "f1", **fibre}, {"name": "joint", "kind": "connector", "loss": "0.3 dB", "gap": "10 um",
+                                         "gap_index": 1.0}, {"name": "f2", **fibre}]
+    (note,) = notes_of(with_width(chain, "0.1 nm"), "joint")
+    quoted_mm = float(re.search(r"coherence length in it \(([0-9.]+) mm", note).group(1))
+    assert quoted_mm == pytest.approx((1550e-9) ** 2 / 0.1e-9 * 1e3, rel=1e-3)
+    assert notes_of(evaluate(chain), "joint")  # and under 100 wavelengths without the width

@@ -121,6 +121,8 @@ RANGES = {range_.what: range_ for range_ in (
           "not a link source",
           unusual=(Unusual(20.0, True, "unusual for a link source and hazardous to eyes and skin; the figures "
                            "are estimates, follow IEC 60825-1/-2 and the site's laser safety officer"),)),
+    Range("spectral width", "`source.spectral_width`", 0.0, 1000e-9, "nm",
+          f"a width is > 0; 1000 nm is a white-light source ({_COMMON})", low_open=True),
     Range("receiver power", "`receiver.sensitivity`, `receiver.overload`", -150.0, 40.0, "dBm",
           f"{_COMMON}: photon counters reach about -150 dBm, power sensors take up to 40 dBm (10 W)",
           unusual=(Unusual(-80.0, False, "below -80 dBm only a photon-counting receiver works"),)),

@@ -51,9 +51,11 @@ class Band(Strict):
 
 
 class Source(Strict):
-    """The transmitter: launch ``power`` into the first segment (a spread is allowed)."""
+    """The transmitter: launch ``power`` into the first segment (a spread is allowed), and the
+    optional ``spectral_width`` (FWHM) that sets its coherence length."""
 
     power: spread("power", bounds=RANGES["source power"])
+    spectral_width: quantity("length", bounds=RANGES["spectral width"]) | None = None
     name: str | None = None
 
 
