@@ -2,7 +2,10 @@
 
 Both sides are :class:`~linkbudget.segments.base.Mode` s (a fibre's, a waveguide's, or a
 launched beam's waist). The coupling is the Gaussian overlap
-(:func:`linkbudget.physics.gaussian.coupling_efficiency_1d` on each transverse axis, η = η_x·η_y).
+(:func:`linkbudget.physics.gaussian.coupling_efficiency_tilt_azimuth`: η = η_x·η_y, the offset
+along one principal axis and the tilt turned at an azimuth from it). The azimuth is the joint's
+``tilt_direction`` when given; otherwise the worst case searches every azimuth, the best case
+too, and the typical point takes the tilt across the offset.
 Every toleranced value (offset, tilt, separation, each side's mode-field diameter) is a spread;
 the worst case is the smallest coupling over the corners of the tolerance box, the best case the
 largest. The typical point and the interior points where coupling peaks are candidates too: equal
@@ -20,7 +23,6 @@ from linkbudget.config.fields import CASES
 from linkbudget.physics import gaussian
 from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.gaussian import coupling_efficiency_tilt_azimuth
-
 
 #: cos ψ of the tilt's azimuth ψ from the offset's direction, per ``tilt_direction`` value.
 TILT_DIRECTION_COSINES = {"along-offset": 1.0, "against-offset": -1.0, "across-offset": 0.0}
