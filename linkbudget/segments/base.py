@@ -1,12 +1,13 @@
 """What every segment kind shares: its name and kind keys, and the evaluation contract."""
 
 from dataclasses import dataclass, field
-from typing import ClassVar
+from typing import ClassVar, Literal
 
 import numpy as np
 
 from linkbudget.config.fields import CASES, InputProblem, Strict, spread
 from linkbudget.config.ranges import RANGES, mode_size_problem
+from linkbudget.segments.coupling import TILT_DIRECTION_COSINES
 
 #: The spread types the segment kinds share (one definition each), by their valid range.
 JointLossSpread = spread("ratio", bounds=RANGES["joint loss"])
@@ -18,6 +19,17 @@ ModeFieldDiameterSpread = spread("length", bounds=RANGES["mode field diameter"])
 AbsorptionSpread = spread("absorption", bounds=RANGES["absorption coefficient"])
 BulkAttenuationSpread = spread("attenuation", bounds=RANGES["bulk attenuation"])
 KappaSpread = spread("number", bounds=RANGES["extinction coefficient"])
+#: Which way a joint's or gap's ``tilt`` turns the launched beam, relative to its ``offset``.
+TiltDirection = Literal[tuple(TILT_DIRECTION_COSINES)]
+
+
+def check_tilt_direction(spec):
+    """Raise :class:`InputProblem` where ``tilt_direction`` is given without both a tilt and an
+    offset to relate (it would change nothing)."""
+    if spec.tilt_direction is not None and (spec.tilt is None or spec.offset is None):
+        missing = "tilt" if spec.tilt is None else "offset"
+        raise InputProblem(("tilt_direction",), f"tilt_direction says which way the tilt turns relative to "
+                                                f"the offset; give the {missing} too")
 
 
 def length_spread(what):

@@ -2,7 +2,10 @@
 
 Both sides are :class:`~linkbudget.segments.base.Mode` s (a fibre's, a waveguide's, or a
 launched beam's waist). The coupling is the Gaussian overlap
-(:func:`linkbudget.physics.gaussian.coupling_efficiency_1d` on each transverse axis, η = η_x·η_y).
+(:func:`linkbudget.physics.gaussian.coupling_efficiency_tilt_azimuth`: η = η_x·η_y, the offset
+along one principal axis and the tilt turned at an azimuth from it). The azimuth is the joint's
+``tilt_direction`` when given; otherwise the worst case searches every azimuth, the best case
+too, and the typical point takes the tilt across the offset.
 Every toleranced value (offset, tilt, separation, each side's mode-field diameter) is a spread;
 the worst case is the smallest coupling over the corners of the tolerance box, the best case the
 largest. The typical point and the interior points where coupling peaks are candidates too: equal
@@ -19,7 +22,12 @@ import numpy as np
 from linkbudget.config.fields import CASES
 from linkbudget.physics import gaussian
 from linkbudget.physics.decibel import loss_db_from_transmittance
-from linkbudget.physics.gaussian import coupling_efficiency_1d
+from linkbudget.physics.gaussian import coupling_efficiency_tilt_azimuth
+
+#: cos ψ of the tilt's azimuth ψ from the offset's direction, per ``tilt_direction`` value.
+TILT_DIRECTION_COSINES = {"along-offset": 1.0, "against-offset": -1.0, "across-offset": 0.0}
+#: The nominal azimuth when ``tilt_direction`` is not given: the tilt across the offset.
+TYPICAL_TILT_DIRECTION = "across-offset"
 
 
 def _ends(spread):
@@ -33,28 +41,57 @@ def _typ(spread):
     return 0.0 if spread is None else spread.typ_value
 
 
-def _case_losses_db(typical, corners):
-    """Loss per case from the typical efficiency and those at the tolerance corners (the typical
-    point counts too, so that best ≤ typ ≤ worst in loss even where a value is not monotonic)."""
-    candidates = np.array([typical, *corners])
-    efficiency = {"typ": typical, "worst": candidates.min(axis=0), "best": candidates.max(axis=0)}
+def _case_losses_db(typical, least, largest=None):
+    """Loss per case from the typical efficiency and the least and largest ones found at the
+    tolerance corners (``largest`` defaults to ``least``; the typical point counts too, so that
+    best ≤ typ ≤ worst in loss even where a value is not monotonic)."""
+    largest = least if largest is None else largest
+    efficiency = {"typ": typical, "worst": np.min([typical, *least], axis=0),
+                  "best": np.max([typical, *largest], axis=0)}
     return {case: loss_db_from_transmittance(efficiency[case]) for case in CASES}
 
 
-def _efficiency(wavelength_m, before_x, before_y, after_x, after_y, offset_m, tilt_rad, separation_m, n):
-    """η with the misalignment along the mode's worse axis (an elliptical mode's offset direction
-    is not known, so the axis where it hurts more is taken; circular modes are unaffected)."""
-    common = dict(separation_m=separation_m, n=n)
-    misaligned = dict(offset_m=offset_m, tilt_rad=tilt_rad, **common)
-    along_x = (coupling_efficiency_1d(before_x, after_x, wavelength_m, **misaligned)
-               * coupling_efficiency_1d(before_y, after_y, wavelength_m, **common))
-    along_y = (coupling_efficiency_1d(before_x, after_x, wavelength_m, **common)
-               * coupling_efficiency_1d(before_y, after_y, wavelength_m, **misaligned))
-    return np.minimum(along_x, along_y)
+def _per_offset_axis(wavelength_m, before, after, offset_m, tilt_rad, separation_m, n):
+    """cos ψ -> (η with the offset along x, η with it along y), before/after as (x, y) radii."""
+    (before_x, before_y), (after_x, after_y) = before, after
+    misalignment = dict(offset_m=offset_m, tilt_rad=tilt_rad, separation_m=separation_m, n=n)
+
+    def at(cosine):
+        return (coupling_efficiency_tilt_azimuth(before_x, before_y, after_x, after_y, wavelength_m,
+                                                 azimuth_cosine=cosine, **misalignment),
+                coupling_efficiency_tilt_azimuth(before_y, before_x, after_y, after_x, wavelength_m,
+                                                 azimuth_cosine=cosine, **misalignment))
+    return at
 
 
-def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, separation=None, n=1.0):
+def _searched_cosines(at):
+    """The azimuth cosines where min(η_x, η_y) can be least or largest over an unknown azimuth.
+
+    ln η of each offset axis is a quadratic a + b·u + c·u² in u = cos ψ
+    (:func:`~linkbudget.physics.gaussian.coupling_efficiency_tilt_azimuth`), found exactly from
+    its values at u = −1, 0, 1; the extremes of the smaller of the two lie at u = ±1, at either
+    quadratic's vertex or where the two cross. Candidates that do not exist (η underflows, no
+    crossing) fall back to u = 1; each candidate is then evaluated exactly.
+    """
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        minus, zero, plus = (np.log(np.stack(at(cosine))) for cosine in (-1.0, 0.0, 1.0))
+        a, b, c = zero, (plus - minus) / 2.0, (plus + minus) / 2.0 - zero
+        vertices = -b / (2.0 * c)
+        da, db, dc = a[0] - a[1], b[0] - b[1], c[0] - c[1]  # the two curves cross at da + db·u + dc·u² = 0
+        q = -(db + np.copysign(np.sqrt(db**2 - 4.0 * da * dc), db)) / 2.0
+        candidates = [*vertices, q / dc, da / q]
+    return [-1.0, 1.0, *(np.clip(np.nan_to_num(u, nan=1.0), -1.0, 1.0) for u in candidates)]
+
+
+def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, separation=None, n=1.0,
+                       tilt_direction=None):
     """Coupling loss [dB] per budget case between two modes.
+
+    The offset lies along the mode's worse axis (an elliptical mode's offset direction is not
+    known, so the axis where it hurts more is taken; circular modes are unaffected). The tilt
+    turns the launched beam at an azimuth from the offset: ``tilt_direction`` fixes it for every
+    case; without it the worst case takes the least coupling over every azimuth, the best case
+    the largest, the nominal the tilt across the offset.
 
     Parameters
     ----------
@@ -63,9 +100,12 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     before, after : Mode
         The mode launched and the mode received.
     offset, tilt, separation : spread or None
-        Lateral offset [m], tilt [rad] (in the gap medium) and axial separation [m].
+        Lateral offset [m] at the receiving mode's waist, tilt [rad] (in the gap medium) and axial
+        separation [m].
     n : float or numpy.ndarray
         Real index of the medium between the two waists.
+    tilt_direction : str or None
+        A key of :data:`TILT_DIRECTION_COSINES`, or ``None`` when not known.
 
     Returns
     -------
@@ -77,16 +117,20 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     .. [1] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56, 703 (1977).
     .. [2] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998, eqs. 8.69/8.75/8.81.
     """
-    corners = [
-        _efficiency(wavelength_m, bx, by, ax, ay, d, theta, gap, n)
-        for (bx, by), (ax, ay), d, theta, gap in itertools.product(
+    fixed = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
+    least, largest = [], []
+    for before_xy, after_xy, d, theta, gap in itertools.product(
             _mode_candidates(before, after), _mode_candidates(after, before),
-            _ends(offset), _ends(tilt), _ends(separation))
-    ]
-    typical = _efficiency(wavelength_m, before.radius_x_m["typ"], before.radius_y_m["typ"],
-                          after.radius_x_m["typ"], after.radius_y_m["typ"],
-                          _typ(offset), _typ(tilt), _typ(separation), n)
-    return _case_losses_db(typical, corners)
+            _ends(offset), _ends(tilt), _ends(separation)):
+        at = _per_offset_axis(wavelength_m, before_xy, after_xy, d, theta, gap, n)
+        values = [np.minimum(*at(cosine)) for cosine in ([fixed] if fixed is not None else _searched_cosines(at))]
+        least.append(np.min(values, axis=0))
+        largest.append(np.max(values, axis=0))
+    typical_at = _per_offset_axis(wavelength_m, (before.radius_x_m["typ"], before.radius_y_m["typ"]),
+                                  (after.radius_x_m["typ"], after.radius_y_m["typ"]),
+                                  _typ(offset), _typ(tilt), _typ(separation), n)
+    typical = np.minimum(*typical_at(TILT_DIRECTION_COSINES[tilt_direction or TYPICAL_TILT_DIRECTION]))
+    return _case_losses_db(typical, least, largest)
 
 
 def _mode_candidates(mode, other):

@@ -28,8 +28,10 @@ from linkbudget.segments.base import (
     OffsetSpread,
     Row,
     SegmentSpec,
+    TiltDirection,
     TiltSpread,
     check_mode_sizes,
+    check_tilt_direction,
     flat_over_wavelength,
     length_spread,
 )
@@ -61,6 +63,7 @@ class _Joint(SegmentSpec):
     joint: JointType | None = None
     offset: OffsetSpread | None = None
     tilt: TiltSpread | None = None
+    tilt_direction: TiltDirection | None = None
     gap: length_spread("joint gap") | None = None
     gap_material: str | None = None
     gap_index: DielectricIndex | None = None
@@ -77,6 +80,7 @@ class _Joint(SegmentSpec):
             raise InputProblem(("gap_index",), "give gap_material or gap_index, not both")
         if self.joint == "physical-contact" and self.gap is not None and self.gap.high > 0:
             raise InputProblem(("joint",), "a physical-contact joint has no gap; use air-gap or index-matched")
+        check_tilt_direction(self)
         return self
 
     @property
@@ -117,7 +121,7 @@ class _Joint(SegmentSpec):
         mode_before, mode_after = self.side_modes(wavelength_m, mode_before, mode_after)
         n_gap = np.real(self._gap_index)
         return coupling_losses_db(wavelength_m, mode_before, mode_after, offset=self.offset, tilt=self.tilt,
-                                  separation=self.gap, n=n_gap)
+                                  separation=self.gap, n=n_gap, tilt_direction=self.tilt_direction)
 
     def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
         geometric = self.geometric_losses_db(wavelength_m, mode_before, mode_after) if self.geometric else None

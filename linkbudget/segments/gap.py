@@ -24,7 +24,9 @@ from linkbudget.segments.base import (
     Mode,
     OffsetSpread,
     Row,
+    TiltDirection,
     TiltSpread,
+    check_tilt_direction,
     length_spread,
     spread,
 )
@@ -73,6 +75,7 @@ class Gap(Bulk):
     aperture: length_spread("aperture diameter") | None = None
     offset: OffsetSpread | None = None
     tilt: TiltSpread | None = None
+    tilt_direction: TiltDirection | None = None
 
     @model_validator(mode="after")
     def _forms(self):
@@ -81,6 +84,7 @@ class Gap(Bulk):
             raise InputProblem(("visibility",), f"give the extinction as {forms[0]} or as visibility, not both")
         if self.aperture is not None and (self.offset is not None or self.tilt is not None):
             raise InputProblem(("aperture",), "offset and tilt apply to coupling into a mode, not to an aperture")
+        check_tilt_direction(self)
         return self
 
     def resolve(self, wavelength_m, files):
@@ -128,7 +132,7 @@ class Gap(Bulk):
         if mode_after is None:
             return None
         return coupling_losses_db(wavelength_m, launched, mode_after, offset=self.offset, tilt=self.tilt,
-                                  separation=self.length, n=n)
+                                  separation=self.length, n=n, tilt_direction=self.tilt_direction)
 
     def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, tangential_index=0.0):
         ambient = {case: self.loss_db(wavelength_m, case, tangential_index=tangential_index) for case in CASES}

@@ -114,6 +114,10 @@ CASES = [
          "count: |" + "9" * 400, "chain[2].count", ("splice count must be from 1 to", "got a 400-digit number")),
     Case("huge-ports", append("  - kind: splitter\n    ports: 83333333333333333333\n"),
          "ports: |83333333333333333333", "chain[2].ports", ("got a 20-digit number",)),
+    Case("unknown-tilt-direction", edit("    loss: 0.5 dB\n", "    loss: 0.5 dB\n    offset: 1 um\n    tilt: 0.2 deg\n"
+                                        "    tilt_direction: toward\n"),
+         "tilt_direction: |toward", "chain[1].tilt_direction",
+         ("must be 'along-offset', 'against-offset' or 'across-offset'",)),
     Case("chain-item-not-a-mapping", append("  - just some text\n"),
          "  - |just some text", "chain[2]", ("a chain item must be a mapping",)),
     Case("normal-spread-reaching-zero", append(
