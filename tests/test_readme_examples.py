@@ -19,6 +19,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 import scipy.special
+import tmm
 import yaml
 from numpy.testing import assert_allclose
 
@@ -40,10 +41,6 @@ from tests.closedforms import (
 )
 from tests.conftest import run_cli
 
-try:  # the test extras hold tmm (pyproject.toml); the coating checks need it
-    import tmm
-except ImportError:  # pragma: no cover
-    tmm = None
 
 README = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
 DEG = math.pi / 180
@@ -153,7 +150,6 @@ def test_readme_joints_between_media_interface_rows():
     assert "R 3.59 %" in text and "R 3.39 %" in text
 
 
-@pytest.mark.skipif(tmm is None, reason="tmm (test extras) not installed")
 def test_readme_coatings_front_and_back():
     data = run_json(readme_link(yaml_block("name: front AR")))
     front, back = rows(data, "front AR", "back attenuator film")

@@ -31,6 +31,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+import tmm
 from numpy.testing import assert_allclose
 
 from tests.closedforms import (
@@ -51,13 +52,14 @@ from tests.closedforms import (
 )
 from tests.conftest import CONFIGS, run_cli
 
-try:  # the test extras hold tmm (pyproject.toml); the coating check needs it
-    import tmm
-except ImportError:  # pragma: no cover
-    tmm = None
 
 CONFIG_DIR = Path(__file__).resolve().parents[1] / "configs"
 DB_TOL = 1e-6  # dB: the JSON's 1e-9 dB rounding, far below
+#: Every file of configs/ has its test below.
+CHECKED = {
+    "quarry-uplink.yaml", "orchard-cwdm-ring.yaml", "flow-cell-probe.yaml", "rooftop-optical-bridge.yaml",
+    "wafer-probe-splitter-card.yaml", "fish-tank-turbidity-probe.yaml",
+}
 
 
 # --- the package's answer ------------------------------------------------------------------------
@@ -74,8 +76,7 @@ def row(data, name):
     return entry
 
 
-def check_budget(name, launch_dbm, loss_db, *, sensitivity_dbm, required_margin_db, overload_dbm=None,
-                 tol_db=DB_TOL):
+def check_budget(name, launch_dbm, loss_db, *, sensitivity_dbm, required_margin_db, overload_dbm=None):
     """Compare received power, worst margin and verdict of a shipped link with the sums here.
 
     ``launch_dbm`` and ``loss_db`` map each case (typ, worst, best) to a number or a list over
@@ -85,9 +86,9 @@ def check_budget(name, launch_dbm, loss_db, *, sensitivity_dbm, required_margin_
     received = {case: np.asarray(launch_dbm[case]) - np.asarray(loss_db[case]) for case in ("typ", "worst", "best")}
     for case in ("typ", "worst", "best"):
         expected = np.broadcast_to(received[case], np.shape(data["received_dbm"][case]))
-        assert_allclose(data["received_dbm"][case], expected, rtol=0, atol=tol_db, err_msg=f"received {case}")
+        assert_allclose(data["received_dbm"][case], expected, rtol=0, atol=DB_TOL, err_msg=f"received {case}")
     margin_worst = received["worst"] - sensitivity_dbm
-    assert_allclose(min(data["margin_db"]["worst"]), np.min(margin_worst), rtol=0, atol=tol_db)
+    assert_allclose(min(data["margin_db"]["worst"]), np.min(margin_worst), rtol=0, atol=DB_TOL)
     closes = bool(np.all(margin_worst >= required_margin_db)
                   and (overload_dbm is None or np.all(received["best"] <= overload_dbm)))
     assert data["closes"] is closes
@@ -240,7 +241,6 @@ def test_wafer_probe_splitter_card_budget():
                  sensitivity_dbm=-20.0, required_margin_db=3.0, overload_dbm=0.0)
 
 
-@pytest.mark.skipif(tmm is None, reason="tmm (test extras) not installed")
 def test_fish_tank_turbidity_probe_budget():
     channels_nm = (1310.0, 1450.0, 1550.0)
     loss = {"typ": [], "worst": [], "best": []}
@@ -272,9 +272,3 @@ def test_fish_tank_turbidity_probe_budget():
     assert loss["typ"][1] == pytest.approx(9.87, abs=0.01)
     check_budget("fish-tank-turbidity-probe.yaml", {"typ": -10.0, "worst": -12.0, "best": -9.0}, loss,
                  sensitivity_dbm=-35.0, required_margin_db=3.0, overload_dbm=-5.0)
-
-
-CHECKED = {
-    "quarry-uplink.yaml", "orchard-cwdm-ring.yaml", "flow-cell-probe.yaml", "rooftop-optical-bridge.yaml",
-    "wafer-probe-splitter-card.yaml", "fish-tank-turbidity-probe.yaml",
-}
