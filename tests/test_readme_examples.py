@@ -330,7 +330,8 @@ def test_readme_indoor_gaps():
     faces = rows(data, "pickup fibre → attenuator gap", "attenuator gap → receiver fibre")
     assert_readme_numbers(
         "The bench path loses 0.50 dB typ (0.79 dB worst) outside the aperture; the attenuator gap\n"
-        "0.64 dB typ (1.14 dB worst), plus its two faces (0.16 dB each)",
+        "0.64 dB typ (1.22 dB worst: its tilt turned against the offset, which the gap does not state),\n"
+        "plus its two faces (0.16 dB each)",
         [typ(bench, "beam_loss_db"), worst(bench, "beam_loss_db"), typ(attenuator, "beam_loss_db"),
          worst(attenuator, "beam_loss_db"), typ(faces[0])])
     assert_readme_numbers("(0.16 dB each)", [typ(faces[1])])
@@ -359,12 +360,10 @@ def attenuator_coupling(length_um, offset_um, tilt_deg):
 
 
 def test_readme_indoor_attenuator_gap_worst_takes_the_unfavourable_tilt_direction():
-    # PENDING PHYSICS FIX (tilt and offset in one joint): the tolerance box does not say on which
-    # side of the offset the tilt leans, so the worst case is the smaller coupling of the two
-    # directions. With a 50-60 µm gap the beam's wavefront curvature makes them differ:
-    # 1.1396 dB when the tilt leans one way, 1.2237 dB the other (overlap of tests/closedforms.py).
-    # The package takes 1.1396 dB today (and README.md prints 1.14); this test expects the
-    # physically correct 1.2237 dB and fails until the fix lands, after which the README must say 1.22.
+    # The gap does not say on which side of the offset the tilt leans, so the worst case is the
+    # smaller coupling of the two directions. With a 50-60 µm gap the beam's wavefront curvature
+    # makes them differ: 1.1396 dB when the tilt leans one way, 1.2237 dB the other (overlap of
+    # tests/closedforms.py); before issue 7 item 3 the package took 1.1396 dB.
     data = run_json(readme_link(indoor_chain(), "wavelength: 1310 nm"))
     (attenuator,) = rows(data, "attenuator gap")
     corners = [attenuator_coupling(length, offset, sign * tilt)

@@ -65,7 +65,8 @@ def _per_offset_axis(wavelength_m, before, after, offset_m, tilt_rad, separation
 
 
 def _searched_cosines(at):
-    """The azimuth cosines where min(η_x, η_y) can be least or largest over an unknown azimuth.
+    """The azimuth cosines where min(η_x, η_y) can be least or largest over an unknown azimuth,
+    on the axis before the wavelengths' (``at`` takes and gives arrays broadcast that way).
 
     ln η of each offset axis is a quadratic a + b·u + c·u² in u = cos ψ
     (:func:`~linkbudget.physics.gaussian.coupling_efficiency_tilt_azimuth`), found exactly from
@@ -74,13 +75,29 @@ def _searched_cosines(at):
     crossing) fall back to u = 1; each candidate is then evaluated exactly.
     """
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
-        minus, zero, plus = (np.log(np.stack(at(cosine))) for cosine in (-1.0, 0.0, 1.0))
+        logs = np.log(np.stack(at(np.array([[-1.0], [0.0], [1.0]]))))  # (offset axis, ..., u, wavelength)
+        minus, zero, plus = logs[..., 0, :], logs[..., 1, :], logs[..., 2, :]
         a, b, c = zero, (plus - minus) / 2.0, (plus + minus) / 2.0 - zero
         vertices = -b / (2.0 * c)
         da, db, dc = a[0] - a[1], b[0] - b[1], c[0] - c[1]  # the two curves cross at da + db·u + dc·u² = 0
         q = -(db + np.copysign(np.sqrt(db**2 - 4.0 * da * dc), db)) / 2.0
         candidates = [*vertices, q / dc, da / q]
-    return [-1.0, 1.0, *(np.clip(np.nan_to_num(u, nan=1.0), -1.0, 1.0) for u in candidates)]
+    found = [np.clip(np.nan_to_num(u, nan=1.0), -1.0, 1.0) for u in candidates]
+    return np.stack(np.broadcast_arrays(-1.0, 1.0, *found), axis=-2)
+
+
+#: Corner-by-azimuth-by-wavelength values evaluated at once (bounds the memory of the search).
+_CHUNK_VALUES = 1 << 20
+
+
+def _stacked(corners, shape):
+    """The corners' (before x, before y, after x, after y, offset, tilt, separation) as arrays with
+    a leading corner axis and an axis for the azimuths, broadcast against the wavelengths."""
+    before, after, offset, tilt, gap = zip(*corners, strict=True)
+    radii = [np.stack([np.broadcast_to(pair[axis], shape) for pair in pairs])[:, None, :]
+             for pairs in (before, after) for axis in (0, 1)]
+    scalars = [np.array(values, dtype=float)[:, None, None] for values in (offset, tilt, gap)]
+    return radii, scalars
 
 
 def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, separation=None, n=1.0,
@@ -117,15 +134,19 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     .. [1] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56, 703 (1977).
     .. [2] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998, eqs. 8.69/8.75/8.81.
     """
-    fixed = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
+    shape = np.shape(wavelength_m)
+    corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
+                                     _ends(offset), _ends(tilt), _ends(separation)))
+    per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
-    for before_xy, after_xy, d, theta, gap in itertools.product(
-            _mode_candidates(before, after), _mode_candidates(after, before),
-            _ends(offset), _ends(tilt), _ends(separation)):
-        at = _per_offset_axis(wavelength_m, before_xy, after_xy, d, theta, gap, n)
-        values = [np.minimum(*at(cosine)) for cosine in ([fixed] if fixed is not None else _searched_cosines(at))]
-        least.append(np.min(values, axis=0))
-        largest.append(np.max(values, axis=0))
+    for start in range(0, len(corners), per_chunk):
+        (bx, by, ax, ay), (d, theta, gap) = _stacked(corners[start:start + per_chunk], shape)
+        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n)
+        cosines = (_searched_cosines(at) if tilt_direction is None
+                   else np.array([[TILT_DIRECTION_COSINES[tilt_direction]]]))
+        values = np.minimum(*at(cosines))  # (corner, azimuth, wavelength)
+        least.append(values.min(axis=(0, 1)))
+        largest.append(values.max(axis=(0, 1)))
     typical_at = _per_offset_axis(wavelength_m, (before.radius_x_m["typ"], before.radius_y_m["typ"]),
                                   (after.radius_x_m["typ"], after.radius_y_m["typ"]),
                                   _typ(offset), _typ(tilt), _typ(separation), n)
