@@ -4,6 +4,7 @@ Exit codes, for every command: 0 the link closes / the command succeeded; 1 a li
 meet its margin or overload; 2 the input is wrong; 3 an internal error (a bug).
 """
 
+import signal
 import sys
 from enum import Enum
 from pathlib import Path
@@ -241,8 +242,15 @@ def materials(
         _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
 
 
+def _interrupted(signum, frame):
+    """Ctrl-C (or SIGINT): stop with the shell's 128 + signal number (130), never a verdict's 1."""
+    typer.echo("linkbudget: interrupted", err=True)
+    raise SystemExit(128 + signum)
+
+
 def main():
     """Console-script entry point."""
+    signal.signal(signal.SIGINT, _interrupted)
     try:
         app()
     except SystemExit:

@@ -361,3 +361,27 @@ def test_cli_import_leaves_heavy_modules_for_the_commands():
             "print(','.join(m for m in ('numpy', 'scipy', 'pydantic', 'yaml') if m in sys.modules))")
     loaded = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True).stdout.strip()
     assert loaded == ""
+
+
+def test_interrupt_exits_130_not_a_verdict(monkeypatch, capsys):
+    # Ctrl-C must not look like "the link does not close" (1) to a CI gate: the shell's
+    # convention 128 + SIGINT (2) = 130, with a one-line message.
+    import os
+    import signal
+    import time
+
+    from linkbudget import cli
+
+    def interrupted_run():
+        os.kill(os.getpid(), signal.SIGINT)
+        time.sleep(5)
+
+    previous = signal.getsignal(signal.SIGINT)
+    monkeypatch.setattr(cli, "app", interrupted_run)
+    try:
+        with pytest.raises(SystemExit) as stop:
+            cli.main()
+    finally:
+        signal.signal(signal.SIGINT, previous)
+    assert stop.value.code == 130
+    assert capsys.readouterr().err == "linkbudget: interrupted\n"
