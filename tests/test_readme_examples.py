@@ -41,7 +41,6 @@ from tests.closedforms import (
 )
 from tests.conftest import run_cli
 
-
 README = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
 DEG = math.pi / 180
 CLOSED_FORM_TOL = 1e-6  # dB, or a power fraction: the same formula; the JSON rounds to 1e-9 dB, 1e-12
@@ -227,6 +226,15 @@ def test_readme_own_material_files():
                      flux_law_db(n_epoxy.imag, 1550e-9, 0.5e-3)], rtol=0, atol=CLOSED_FORM_TOL)
 
 
+def run_refused(link, folder, monkeypatch):
+    """``linkbudget run link.yaml`` on ``link`` written in ``folder``: refused as bad input (exit 2)."""
+    (folder / "link.yaml").write_text(link, encoding="utf-8")
+    monkeypatch.chdir(folder)
+    result = run_cli("run", "link.yaml")
+    assert result.exit_code == 2
+    return result
+
+
 def test_readme_wavelength_outside_material_data_error(tmp_path, monkeypatch):
     message = readme_says(
         "link.yaml:11:15: chain[0].material: silicon: wavelength 1550 nm is outside the valid range 250–1450 nm\n"
@@ -234,10 +242,7 @@ def test_readme_wavelength_outside_material_data_error(tmp_path, monkeypatch):
     # the README's link head (chain: on line 9), then the entry whose material is on line 11, column 15
     link = readme_link("  - name: die\n    material: silicon\n    kind: medium\n    thickness: 0.3 mm\n")
     assert link.splitlines()[10] == "    material: silicon"
-    (tmp_path / "link.yaml").write_text(link, encoding="utf-8")
-    monkeypatch.chdir(tmp_path)
-    result = run_cli("run", "link.yaml")
-    assert result.exit_code == 2
+    result = run_refused(link, tmp_path, monkeypatch)
     assert message in result.stderr
 
 
@@ -255,10 +260,7 @@ def test_readme_path_outside_project_error(tmp_path, monkeypatch):
                        "  - name: window\n    kind: medium\n    material: ../../shared/glass.yaml\n"
                        "    thickness: 2 mm\n")
     assert link.splitlines()[14] == "    material: ../../shared/glass.yaml"
-    (project / "link.yaml").write_text(link, encoding="utf-8")
-    monkeypatch.chdir(project)
-    result = run_cli("run", "link.yaml")
-    assert result.exit_code == 2
+    result = run_refused(link, project, monkeypatch)
     assert message in result.stderr
 
 
@@ -465,10 +467,7 @@ def test_readme_unknown_key_error(tmp_path, monkeypatch):
                           "  hint: did you mean 'attenuation'?")
     link = yaml_block("title: Quarry conveyor telemetry uplink").replace("    attenuation:", "    attenuaton:", 1)
     assert link.splitlines()[12].startswith("    attenuaton:")
-    (tmp_path / "link.yaml").write_text(link, encoding="utf-8")
-    monkeypatch.chdir(tmp_path)
-    result = run_cli("run", "link.yaml")
-    assert result.exit_code == 2
+    result = run_refused(link, tmp_path, monkeypatch)
     assert message in result.stderr
 
 
@@ -478,10 +477,7 @@ def test_readme_value_out_of_range_error(tmp_path, monkeypatch):
     head, tail = shown.split(" ...")
     link = readme_link("  - name: lead\n    kind: fiber\n    numerical_aperture: 1.5\n    core_diameter: 8.2 um\n"
                        "    length: 3 m\n    attenuation: 0.5 dB/km\n")
-    (tmp_path / "link.yaml").write_text(link, encoding="utf-8")
-    monkeypatch.chdir(tmp_path)
-    result = run_cli("run", "link.yaml")
-    assert result.exit_code == 2
+    result = run_refused(link, tmp_path, monkeypatch)
     line = next(line for line in result.stderr.splitlines() if line.startswith("link.yaml:"))
     assert line.startswith(head) and line.endswith(tail)
 

@@ -52,7 +52,6 @@ from tests.closedforms import (
 )
 from tests.conftest import CONFIGS, run_cli
 
-
 CONFIG_DIR = Path(__file__).resolve().parents[1] / "configs"
 DB_TOL = 1e-6  # dB: the JSON's 1e-9 dB rounding, far below
 #: Every file of configs/ has its test below.

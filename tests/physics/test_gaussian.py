@@ -11,8 +11,6 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
-from tests import numeric_overlap
-
 from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.gaussian import (
     abcd_flat_interface,
@@ -33,6 +31,7 @@ from linkbudget.physics.gaussian import (
     waist_from_divergence_m,
     waist_from_q,
 )
+from tests import numeric_overlap
 
 W = 5.2e-6
 LAMBDA = 1.55e-6
