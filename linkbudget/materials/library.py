@@ -45,6 +45,7 @@ import yaml
 from linkbudget.materials import dispersion
 from linkbudget.materials.dispersion import require_in_range
 from linkbudget.paths import LinkFiles, read_regular_file
+from linkbudget.physics import flux
 from linkbudget.text import escaped
 from linkbudget.units import UNITS
 from linkbudget.yamlread import MAX_FILE_BYTES, ReadError, bounded_text, compose
@@ -64,6 +65,18 @@ _TABLE_COLUMNS = (["wavelength", "n", "k"], ["wavelength", "n"])
 
 class MaterialError(ValueError):
     """A material name is unknown or a material file is malformed."""
+
+
+@dataclass(frozen=True)
+class OpticalConstants:
+    """A material's constants over wavelengths [m]: index N = n + iκ, the intensity attenuation
+    coefficient α = 4πκ/λ [1/m] and the loss of 1 mm [dB] through the flux law
+    (:mod:`linkbudget.physics.flux`)."""
+
+    wavelength_m: np.ndarray
+    index: np.ndarray
+    absorption_per_m: np.ndarray
+    loss_db_per_mm: np.ndarray
 
 
 @dataclass(frozen=True)
@@ -100,6 +113,13 @@ class Material:
         wavelength_m = np.asarray(wavelength_m, dtype=float)
         require_in_range(wavelength_m, self.valid_range_m, what=self.name)
         return np.asarray(self.dispersion(wavelength_m), dtype=complex)
+
+    def constants(self, wavelength_m):
+        """:class:`OpticalConstants` at vacuum wavelengths [m] (same range check as :meth:`index`)."""
+        wavelength_m = np.asarray(wavelength_m, dtype=float)
+        index = self.index(wavelength_m)
+        absorption_per_m = flux.absorption_coefficient_from_kappa(index.imag, wavelength_m)
+        return OpticalConstants(wavelength_m, index, absorption_per_m, flux.loss_db(absorption_per_m, 1e-3))
 
 
 @functools.cache

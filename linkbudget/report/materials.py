@@ -3,8 +3,6 @@
 from rich import box
 from rich.table import Table
 
-from linkbudget.physics import flux
-
 
 def length_text(length_m):
     """A length in the unit that reads best: nm below 10 µm, µm below 10 mm, else mm or m."""
@@ -28,15 +26,16 @@ def catalog_table(materials):
 
 
 def constants_table(material, wavelength_m):
-    """n, κ, the intensity attenuation coefficient α = 4πκ/λ and the loss per mm at each wavelength."""
-    index = material.index(wavelength_m)
-    alpha_per_m = flux.absorption_coefficient_from_kappa(index.imag, wavelength_m)
+    """n, κ, the intensity attenuation coefficient α and the loss per mm at each wavelength
+    (:meth:`linkbudget.materials.library.Material.constants`)."""
+    constants = material.constants(wavelength_m)
     table = Table(title=f"{material.name}: {material.description}", title_justify="left", box=box.SIMPLE_HEAD,
                   caption=f"source: {material.source}", caption_justify="left")
     for header in ("wavelength", "n", "κ", "α (1/cm)", "loss (dB/mm)"):
         table.add_column(header, justify="right", no_wrap=True)
-    loss_db_per_mm = flux.loss_db(alpha_per_m, 1e-3)
-    for number, wavelength in enumerate(wavelength_m):
-        table.add_row(f"{wavelength * 1e9:.6g} nm", f"{index.real[number]:.6f}", f"{index.imag[number]:.4e}",
-                      f"{alpha_per_m[number] / 100:.4g}", f"{loss_db_per_mm[number]:.4g}")
+    for wavelength, index, alpha_per_m, loss_db in zip(constants.wavelength_m, constants.index,
+                                                       constants.absorption_per_m, constants.loss_db_per_mm,
+                                                       strict=True):
+        table.add_row(f"{wavelength * 1e9:.6g} nm", f"{index.real:.6f}", f"{index.imag:.4e}",
+                      f"{alpha_per_m / 100:.4g}", f"{loss_db:.4g}")
     return table

@@ -325,3 +325,14 @@ def test_load_material_user_gas_file(tmp_path):
 def test_load_material_missing_file_raises(tmp_path):
     with pytest.raises(PathRefused, match=r"cannot read file 'absent\.yaml': No such file"):
         load_material("absent.yaml", base_dir=tmp_path)
+
+
+def test_material_constants_follow_the_flux_law():
+    # α = 4πκ/λ and the loss of 1 mm 10·log10(e)·α·1 mm (Born & Wolf; the flux law in DESIGN.md),
+    # computed here from the material's own κ at two wavelengths.
+    wavelength_m = np.array([1000e-9, 1550e-9])
+    constants = load_material("gold").constants(wavelength_m)
+    kappa = constants.index.imag
+    assert_allclose(constants.absorption_per_m, 4 * np.pi * kappa / wavelength_m, rtol=1e-12)
+    assert_allclose(constants.loss_db_per_mm, 10 * np.log10(np.e) * constants.absorption_per_m * 1e-3, rtol=1e-12)
+    assert_allclose(constants.index, load_material("gold").index(wavelength_m), rtol=0)
