@@ -43,7 +43,7 @@ def terminal_text(result):
 
 FORMATS = {
     "terminal": terminal_text,
-    "json": lambda result: json.dumps(result.to_dict()),
+    "json": lambda result: json.dumps(linkbudget.result_dict(result)),
     "markdown": markdown.render,
     "csv": csv.render,
 }

@@ -6,14 +6,14 @@ Quick use::
     link = linkbudget.load("configs/quarry-uplink.yaml")   # a path, or YAML text
     result = linkbudget.evaluate(link)
     result.margin_db["worst"]                              # numpy array over the wavelengths
-    result.to_dict()                                       # the versioned JSON result
+    linkbudget.result_dict(result)                         # the versioned JSON result
 
 The names below are imported lazily so that the command line starts fast.
 """
 
 __version__ = "0.1.0"
 
-__all__ = ["ConfigError", "LinkResult", "__version__", "evaluate", "load"]
+__all__ = ["ConfigError", "LinkResult", "__version__", "evaluate", "load", "result_dict"]
 
 
 def load(source, *, base_dir=None, allow_paths=()):
@@ -51,6 +51,13 @@ def evaluate(link, *, required_margin_db=None):
     from linkbudget.engine import evaluate as evaluate_link
 
     return evaluate_link(link, required_margin_db=required_margin_db)
+
+
+def result_dict(result):
+    """The versioned JSON result of an evaluated link; see :func:`linkbudget.report.json.result_dict`."""
+    from linkbudget.report.json import result_dict as json_result
+
+    return json_result(result)
 
 
 def __getattr__(name):

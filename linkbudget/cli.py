@@ -106,7 +106,9 @@ def _report_text(result, output_format):
     if output_format is Format.json:
         import json
 
-        return json.dumps(result.to_dict(), indent=2) + "\n"
+        from linkbudget.report.json import result_dict
+
+        return json.dumps(result_dict(result), indent=2) + "\n"
     if output_format is Format.markdown:
         from linkbudget.report.markdown import render
 

@@ -111,12 +111,6 @@ class LinkResult:
         """Index of the wavelength with the smallest worst-case margin."""
         return int(np.argmin(self.margin_db["worst"]))
 
-    def to_dict(self):
-        """The versioned JSON result (see :mod:`linkbudget.report.json`)."""
-        from linkbudget.report.json import result_dict
-
-        return result_dict(self)
-
 
 #: The linear polarizations whose powers are followed separately through every face.
 _POLARIZATIONS = ("s", "p")

@@ -115,9 +115,9 @@ def test_evaluate_medium_flux_law_forms_agree():
         assert_allclose(bulk.loss_db["typ"], [expected], rtol=1e-12, err_msg=form)
 
 
-def test_to_dict_minimum_contract():
+def test_result_dict_minimum_contract():
     result = evaluate("  - {kind: element, loss: {typ: 1 dB, max: 2 dB}}", wavelength="channels: [1310 nm, 1550 nm]")
-    data = result.to_dict()
+    data = linkbudget.result_dict(result)
     assert data["schema"] == "linkbudget.result/1"
     assert data["wavelengths_nm"] == pytest.approx([1310.0, 1550.0])
     assert data["segments"][0]["loss_db"] == {"typ": [1.0, 1.0], "worst": [2.0, 2.0], "best": [1.0, 1.0]}

@@ -23,6 +23,7 @@ import numpy as np
 import pytest
 from numpy.testing import assert_allclose
 
+import linkbudget
 from linkbudget.materials.library import load_material
 from linkbudget.physics.fiber import marcuse_mode_field_radius_m, v_number
 from tests.segments.linktext import evaluate, only_problem, row
@@ -355,7 +356,7 @@ def test_full_link_total_is_the_sum_of_the_published_models():
     assert_allclose(result.loss_db["typ"][:, 0], list(expected.values()), rtol=1e-11)
     assert_allclose(result.cumulative_loss_db["typ"][-1], [sum(expected.values())], rtol=1e-11)
 
-    segments = {segment["name"]: segment for segment in result.to_dict()["segments"]}
+    segments = {segment["name"]: segment for segment in linkbudget.result_dict(result)["segments"]}
     parts = segments["chip"]["loss_parts_db"]
     assert_allclose([parts[p]["typ"][0] for p in ("propagation", "bends", "crossings")], [1.0, 0.2, 0.4], rtol=1e-12)
     assert segments["star"]["port"] == 3

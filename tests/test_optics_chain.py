@@ -201,7 +201,7 @@ def test_coating_row_lossless_layers_absorb_nothing(angle, polarization):
 
 
 def test_coating_in_json_carries_reflectance_and_absorptance():
-    data = evaluate(coated_window(STACKS["gold"], None, "unpolarized"), CHANNELS).to_dict()
+    data = linkbudget.result_dict(evaluate(coated_window(STACKS["gold"], None, "unpolarized"), CHANNELS))
     (coating,) = [segment for segment in data["segments"] if segment["kind"] == "coating"]
     assert len(coating["reflectance"]) == len(coating["absorptance"]) == len(CHANNELS_M)
 
@@ -227,7 +227,7 @@ def test_interface_rows_one_between_each_pair_of_different_indices():
     for name, (n1, n2) in pairs.items():
         assert_allclose(faces[name].detail["reflectance"], [fresnel_normal(n1, n2)], rtol=1e-12)
         assert_allclose(faces[name].loss_db["worst"], loss_db(1 - fresnel_normal(n1, n2)), rtol=1e-12)
-    json_faces = [s for s in result.to_dict()["segments"] if s["kind"] == "interface"]
+    json_faces = [s for s in linkbudget.result_dict(result)["segments"] if s["kind"] == "interface"]
     assert [s["name"] for s in json_faces] == list(pairs)
     assert_allclose([s["reflectance"][0] for s in json_faces], [fresnel_normal(*p) for p in pairs.values()],
                     rtol=0, atol=5e-13)  # the JSON writes fractions to 1e-12

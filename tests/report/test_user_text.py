@@ -98,7 +98,7 @@ def test_json_keeps_user_text_as_written(write_link, cli):
 
 
 def test_without_user_text_json_holds_nulls(minimal_link):
-    data = linkbudget.evaluate(linkbudget.load(minimal_link)).to_dict()
+    data = linkbudget.result_dict(linkbudget.evaluate(linkbudget.load(minimal_link)))
     assert data["description"] is None and data["source"] == {"name": None}
     assert data["receiver"]["name"] is None
     assert all("note" not in segment for segment in data["segments"])
