@@ -28,6 +28,7 @@ from linkbudget.physics.decibel import (
 )
 from linkbudget.physics.validity import ValidityWarning, span_text
 from linkbudget.segments.base import Row
+from linkbudget.text import length_text
 
 
 @dataclass(frozen=True)
@@ -341,10 +342,6 @@ def segment_notes(segment):
     return notes
 
 
-def _length_text(length_m):
-    return f"{length_m * 1e6:.4g} µm" if length_m < 1e-3 else f"{length_m * 1e3:.4g} mm"
-
-
 def _coherence_problem(thickness_m, n_real, wavelength_m, spectral_width_m):
     """Why a medium between two faces may not be summed incoherently, or ``None``.
 
@@ -352,7 +349,7 @@ def _coherence_problem(thickness_m, n_real, wavelength_m, spectral_width_m):
     λ²/(n·Δλ) (:func:`linkbudget.physics.coherence.coherence_length_m`). Without it: thinner
     than :data:`~linkbudget.physics.coherence.THICK_MEDIUM_WAVELENGTHS` wavelengths.
     """
-    thick = _length_text(thickness_m)
+    thick = length_text(thickness_m)
     if spectral_width_m is None:
         if np.all(thickness_m >= coherence.THICK_MEDIUM_WAVELENGTHS * wavelength_m):
             return None
@@ -378,7 +375,7 @@ def _note_faced_gaps(upstream, joint, wavelength_m, spectral_width_m):
     """The coherence notes of the media just left between two faces: the medium ``upstream``
     (entered through a face, a plate with parallel faces) and an air-gap ``joint``'s gap."""
     if upstream.entered_through_face and upstream.segment.parallel_faces:
-        thinnest_m = min(float(np.min(upstream.segment.path_length_m(case))) for case in CASES)
+        thinnest_m = min(upstream.segment.path_length_m(case) for case in CASES)
         _note_coherence(upstream.segment.name, thinnest_m, np.real(upstream.segment.medium_index()),
                         wavelength_m, spectral_width_m)
     if joint is not None and joint.joint_type == "air-gap" and joint.gap is not None and joint.gap.low > 0:

@@ -1,4 +1,5 @@
-"""User text made safe to print: one escaping rule for every output format and every message.
+"""Text for people: user text made safe to print (one escaping rule for every output format and
+every message), and lengths in the unit that reads best (:func:`length_text`).
 
 Names, titles and notes come from link files that anyone who can open a pull request may write.
 Printed raw, a line break or an ANSI escape sequence in a name could forge a ``PASS`` line in a CI
@@ -30,3 +31,11 @@ def escaped(text):
     if text.isprintable() and "\\" not in text:
         return text
     return "".join(_escaped_char(char) for char in text)
+
+
+def length_text(length_m):
+    """A length in the unit that reads best: nm below 10 µm, µm below 10 mm, else mm or m."""
+    for unit, factor, below in (("nm", 1e-9, 1e-5), ("µm", 1e-6, 1e-2), ("mm", 1e-3, 1.0)):
+        if length_m < below:
+            return f"{length_m / factor:.6g} {unit}"
+    return f"{length_m:.6g} m"

@@ -3,13 +3,7 @@
 from rich import box
 from rich.table import Table
 
-
-def length_text(length_m):
-    """A length in the unit that reads best: nm below 10 µm, µm below 10 mm, else mm or m."""
-    for unit, factor, below in (("nm", 1e-9, 1e-5), ("µm", 1e-6, 1e-2), ("mm", 1e-3, 1.0)):
-        if length_m < below:
-            return f"{length_m / factor:.6g} {unit}"
-    return f"{length_m:.6g} m"
+from linkbudget.text import length_text
 
 
 def catalog_table(materials):
