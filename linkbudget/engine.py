@@ -12,14 +12,13 @@ receiver's overload.
 """
 
 import warnings
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 
 import numpy as np
 
 from linkbudget.cautions import CAUTIONS
-from linkbudget.config.fields import CASES, range_notes
-from linkbudget.config.ranges import index_notes
+from linkbudget.config.fields import range_notes
 from linkbudget.config.source import ConfigError, Problem
 from linkbudget.physics import coherence, fresnel, thinfilm
 from linkbudget.physics.decibel import (
@@ -27,7 +26,10 @@ from linkbudget.physics.decibel import (
     transmittance_from_loss_db,
 )
 from linkbudget.physics.validity import ValidityWarning, span_text
-from linkbudget.segments.base import Row
+from linkbudget.segments.base import Around
+from linkbudget.segments.cases import CASES, CORNERS
+from linkbudget.segments.roles import Carries, Coats, Faces, Guides, Joint, Passes
+from linkbudget.segments.rows import POLARIZATIONS, Row
 from linkbudget.text import length_text
 
 
@@ -93,8 +95,9 @@ class LinkResult:
         """Mask (n_rows, n_wavelengths): the row is a face or coating that reflects all the light
         (total internal reflection), so its loss is +inf. The only non-finite values a result holds
         are this loss and the values after it at that wavelength (no light reaches them)."""
-        reflectance = np.array([row.detail.get("reflectance", np.zeros(self.wavelength_m.shape))
-                                for row in self.rows], dtype=float).reshape(len(self.rows), -1)
+        reflectance = np.array([np.zeros(self.wavelength_m.shape) if row.reflectance is None
+                                else row.reflectance_seen for row in self.rows],
+                               dtype=float).reshape(len(self.rows), -1)
         return np.isposinf(self.loss_db["typ"]) & (reflectance >= 1 - 1e-9)
 
     @cached_property
@@ -113,16 +116,13 @@ class LinkResult:
         return int(np.argmin(self.margin_db["worst"]))
 
 
-#: The linear polarizations whose powers are followed separately through every face.
-_POLARIZATIONS = ("s", "p")
+def _stated_share(polarization, cases):
+    """case name -> polarization -> power share, for light stated to be of ``polarization``."""
+    return {case.name: dict(_STATED_SHARES[polarization]) for case in cases}
+
 
 #: Power shares of s and p light for each ``polarization`` a segment may state.
 _STATED_SHARES = {"unpolarized": {"s": 0.5, "p": 0.5}, "s": {"s": 1.0, "p": 0.0}, "p": {"s": 0.0, "p": 1.0}}
-
-
-def _stated_share(polarization):
-    """case -> polarization -> power share, for light stated to be of ``polarization``."""
-    return {case: dict(_STATED_SHARES[polarization]) for case in CASES}
 
 
 def _pass(share, transmittance):
@@ -133,24 +133,21 @@ def _pass(share, transmittance):
     polarization, the transmittances of every face before averaging, so an unpolarized beam
     through several oblique faces loses mean_pol(Π T_pol), not Π mean_pol(T_pol).
     """
-    passed = sum(share[pol] * transmittance[pol] for pol in _POLARIZATIONS)
+    passed = sum(share[pol] * transmittance[pol] for pol in POLARIZATIONS)
     with np.errstate(divide="ignore", invalid="ignore"):
         after = {pol: np.where(passed > 0, share[pol] * transmittance[pol] / passed, share[pol])
-                 for pol in _POLARIZATIONS}
+                 for pol in POLARIZATIONS}
     return passed, after
 
 
-def _share_row(name, kind, share, transmittance, **detail):
-    """A row whose power transmittance differs by polarization, and the shares after it (per case).
-
-    ``detail`` values (per polarization) are reported weighted by the typical case's shares.
-    """
+def _share_row(row_id, kind, origin, share, transmittance, **typed):
+    """A row whose power transmittance differs by polarization (case name -> its loss), and the
+    shares after it; it records the shares of the light reaching it (the first case's)."""
     losses, after = {}, {}
-    for case in CASES:
-        passed, after[case] = _pass(share[case], transmittance)
+    for case, case_share in share.items():
+        passed, after[case] = _pass(case_share, transmittance)
         losses[case] = loss_db_from_transmittance(passed)
-    weighted = {key: sum(share["typ"][pol] * value[pol] for pol in _POLARIZATIONS) for key, value in detail.items()}
-    return Row(name, kind, losses, weighted), after
+    return Row(row_id, kind, origin, losses, polarization_share=next(iter(share.values())), **typed), after
 
 
 class _RowNote(ValidityWarning):
@@ -174,13 +171,14 @@ def _polarized(row_name, share, function, **kwargs):
     """pol -> ``function(polarization=pol, **kwargs)`` for s and p (their powers are followed apart).
 
     Its :class:`ValidityWarning` s are raised once, under ``row_name``, for the light the row
-    carries (the typical case's shares): one polarization's own, or for both those of unpolarized
+    carries (the first case's shares): one polarization's own, or for both those of unpolarized
     light, so a p-polarized face never quotes its s value.
     """
     values, caught = {}, {}
-    for pol in _POLARIZATIONS:
+    for pol in POLARIZATIONS:
         values[pol], caught[pol] = _recorded(function, polarization=pol, **kwargs)
-    carried = [pol for pol in _POLARIZATIONS if np.any(share["typ"][pol] > 0)]
+    carried_share = next(iter(share.values()))
+    carried = [pol for pol in POLARIZATIONS if np.any(carried_share[pol] > 0)]
     if len(carried) != 1 and any(caught.values()):
         _, caught["unpolarized"] = _recorded(function, polarization="unpolarized", **kwargs)
         carried = ["unpolarized"]
@@ -195,75 +193,7 @@ def _quietly(function, **kwargs):
     inside, whose reflectance only enters the multiple-reflection sum, checked against tmm)."""
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
-        return {pol: function(polarization=pol, **kwargs) for pol in _POLARIZATIONS}
-
-
-def _face(name_from, name_to, n_from, n_to, angle_rad, share, need_back):
-    """A bare interface: its row, the shares after it, its reflectance, and (if ``need_back``) its
-    reflectance seen from the far side, each per polarization."""
-    name = f"{name_from} → {name_to}"
-    forward = _polarized(name, share, fresnel.interface_power_coefficients, n1=n_from, n2=n_to, angle_rad=angle_rad)
-    reflectance = {pol: r for pol, (r, _) in forward.items()}
-    back = None
-    if need_back:
-        inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
-        back = {pol: r for pol, (r, _) in _quietly(fresnel.interface_power_coefficients, n1=n_to, n2=n_from,
-                                                   angle_rad=inside).items()}
-    row, share = _share_row(name, "interface", share, {pol: t for pol, (_, t) in forward.items()},
-                            reflectance=reflectance)
-    return [row], share, reflectance, back
-
-
-def _coating(coating, wavelength_m, n_up, n_down, angle_rad, share, need_back):
-    """A coating's row, the shares after it, its reflectance, and (if ``need_back``) its
-    reflectance seen from the downstream medium, each per polarization."""
-    forward = _polarized(coating.name, share, thinfilm.coherent_stack, layer_index=coating.layer_index,
-                         thickness_m=coating.thickness_m, wavelength_m=wavelength_m, n_incident=n_up,
-                         n_exit=n_down, angle_rad=angle_rad)
-    reflectance = {pol: response.reflectance for pol, response in forward.items()}
-    back = None
-    if need_back:
-        back = {pol: response.reflectance for pol, response in _quietly(
-            thinfilm.coherent_stack, layer_index=coating.layer_index[::-1], thickness_m=coating.thickness_m[::-1],
-            wavelength_m=wavelength_m, n_incident=n_down, n_exit=n_up,
-            angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad)).items()}
-    # 1 - R - T rounds to -1e-16 when lossless
-    absorptance = {pol: np.maximum(response.absorptance, 0.0) for pol, response in forward.items()}
-    row, share = _share_row(coating.name, "coating", share,
-                            {pol: response.transmittance for pol, response in forward.items()},
-                            reflectance=reflectance, absorptance=absorptance)
-    return [row], share, reflectance, back
-
-
-@dataclass
-class _Carrier:
-    """The last segment that carried a medium, and what its exit face needs to know."""
-
-    segment: object
-    exit_angle_rad: np.ndarray | float  # ray angle inside it, at its exit face
-    share: dict  # case -> polarization -> power share of the light inside it
-    back_reflectance: dict | None  # polarization -> of its entry face, seen from inside
-    single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
-    entered_through_face: bool = False  # a face (or coating) was inserted before it
-
-
-def _joint_faces(upstream, segment, joint, coating, wavelength_m, angle_rad, share):
-    """Rows between two media: (rows, shares after them, reflectance of the first face met,
-    back-reflectance of the last face); reflectances per polarization, ``None`` without a face."""
-    n_up, n_down = upstream.segment.medium_index(), segment.medium_index()
-    need_back = getattr(segment, "multiple_reflections", False)
-    if coating is not None:
-        return _coating(coating, wavelength_m, n_up, n_down, angle_rad, share, need_back)
-    kind = "physical-contact" if joint is None else joint.joint_type
-    if kind == "index-matched" or (kind == "physical-contact" and np.array_equal(n_up, n_down)):
-        return [], share, None, None
-    if kind == "air-gap":
-        n_gap, gap_name = joint.gap_medium_index(), f"{joint.name} gap"
-        first, share, reflectance, _ = _face(upstream.segment.name, gap_name, n_up, n_gap, angle_rad, share, False)
-        angle_gap = fresnel.refraction_angle_rad(n_up, n_gap, angle_rad)
-        second, share, _, back = _face(gap_name, segment.name, n_gap, n_down, angle_gap, share, need_back)
-        return first + second, share, reflectance, back
-    return _face(upstream.segment.name, segment.name, n_up, n_down, angle_rad, share, need_back)
+        return {pol: function(polarization=pol, **kwargs) for pol in POLARIZATIONS}
 
 
 #: Index of the air around a lone window (a ``medium`` with no medium on either side). Air's
@@ -274,35 +204,89 @@ SURROUNDING_INDEX = 1.0
 
 
 @dataclass(frozen=True)
-class _Surroundings:
-    """The air around a lone window, standing in for a segment at its two faces."""
+class _Side:
+    """A medium on one side of a face: its name in row names, the segment it is (``None`` for the
+    air around a lone window), and its :class:`~linkbudget.segments.roles.Carries` role."""
 
-    index: np.ndarray
-    name: str = "air"
-
-    def medium_index(self):
-        return self.index
+    name: str
+    owner: str | None
+    medium: Carries
 
 
-def _lone_windows(segments):
-    """For each segment: it is a window (a ``medium``, parallel faces) with no segment carrying a
-    medium before or after it in its run of faces (joints and elements pass the run on), and no
-    fibre, waveguide or splitter directly against it (a guide it touches is what lies on that side,
-    its face unknown)."""
+def _origin(*owners):
+    """The segments a row sits between (the air around a window is none)."""
+    return tuple(owner for owner in owners if owner is not None)
+
+
+@dataclass
+class _Carrier:
+    """The last medium met, and what its exit face needs to know."""
+
+    side: _Side
+    exit_angle_rad: np.ndarray | float  # ray angle inside it, at its exit face
+    share: dict  # case name -> polarization -> power share of the light inside it
+    back_reflectance: dict | None  # polarization -> of its entry face, seen from inside
+    single_pass_db: dict | None  # its bulk loss per case, when its multiple reflections are summed
+    entered_through_face: bool = False  # a face (or coating) was inserted before it
+
+
+def _face(up, down, origin, angle_rad, share, need_back):
+    """A bare interface between two :class:`_Side` s: its row, the shares after it, its
+    reflectance, and (if ``need_back``) its reflectance seen from the far side, per polarization."""
+    name = f"{up.name} → {down.name}"
+    n_from, n_to = up.medium.index, down.medium.index
+    forward = _polarized(name, share, fresnel.interface_power_coefficients, n1=n_from, n2=n_to, angle_rad=angle_rad)
+    reflectance = {pol: r for pol, (r, _) in forward.items()}
+    back = None
+    if need_back:
+        inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
+        back = {pol: r for pol, (r, _) in _quietly(fresnel.interface_power_coefficients, n1=n_to, n2=n_from,
+                                                   angle_rad=inside).items()}
+    row, share = _share_row(name, "interface", origin, share, {pol: t for pol, (_, t) in forward.items()},
+                            reflectance=reflectance)
+    return [row], share, reflectance, back
+
+
+def _coating(coating, coats, wavelength_m, n_up, n_down, angle_rad, share, need_back):
+    """A coating's row, the shares after it, its reflectance, and (if ``need_back``) its
+    reflectance seen from the downstream medium, each per polarization."""
+    forward = _polarized(coating.name, share, thinfilm.coherent_stack, layer_index=coats.layer_index,
+                         thickness_m=coats.thickness_m, wavelength_m=wavelength_m, n_incident=n_up,
+                         n_exit=n_down, angle_rad=angle_rad)
+    reflectance = {pol: response.reflectance for pol, response in forward.items()}
+    back = None
+    if need_back:
+        back = {pol: response.reflectance for pol, response in _quietly(
+            thinfilm.coherent_stack, layer_index=coats.layer_index[::-1], thickness_m=coats.thickness_m[::-1],
+            wavelength_m=wavelength_m, n_incident=n_down, n_exit=n_up,
+            angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad)).items()}
+    # 1 - R - T rounds to -1e-16 when lossless
+    absorptance = {pol: np.maximum(response.absorptance, 0.0) for pol, response in forward.items()}
+    row, share = _share_row(coating.name, "coating", (coating.name,), share,
+                            {pol: response.transmittance for pol, response in forward.items()},
+                            segment_kind=coating.kind, reflectance=reflectance, absorptance=absorptance)
+    return [row], share, reflectance, back
+
+
+def _lone_windows(roles):
+    """For each segment (by its role): it is a window (a medium with parallel faces) with no
+    medium before or after it in its run of faces (joints, elements and coatings pass the run
+    on), and no guide directly against it (a guide it touches is what lies on that side, its face
+    unknown)."""
     def alone(run):
-        for step, neighbour in enumerate(run):
-            if neighbour.medium_index() is not None:
+        for step, role in enumerate(run):
+            if isinstance(role, Carries):
                 return False
-            if not (neighbour.passes_faces or neighbour.is_coating):
+            if not isinstance(role, (Passes, Joint, Coats)):
                 return step > 0
         return True
 
-    return [segment.parallel_faces and segment.medium_index() is not None
-            and alone(reversed(segments[:position])) and alone(segments[position + 1:])
-            for position, segment in enumerate(segments)]
+    return [isinstance(role, Carries) and role.parallel_faces
+            and alone(reversed(roles[:position])) and alone(roles[position + 1:])
+            for position, role in enumerate(roles)]
 
 
-def _multiple_reflections_row(carrier, exit_reflectance, share):
+def _multiple_reflections_row(carrier, downstream, exit_reflectance, share):
     """The incoherent sum of the light bouncing between a medium's two faces, as a (negative) loss.
 
     T = T1·τ·T2 / (1 − R1'·R2·τ²) per polarization: the single-pass rows give T1·τ·T2, this row
@@ -313,33 +297,22 @@ def _multiple_reflections_row(carrier, exit_reflectance, share):
     for case, single_pass_db in carrier.single_pass_db.items():
         tau = transmittance_from_loss_db(single_pass_db)
         factor = {pol: thinfilm.round_trip_factor(carrier.back_reflectance[pol], exit_reflectance[pol], tau)
-                  for pol in _POLARIZATIONS}
+                  for pol in POLARIZATIONS}
         passed, after[case] = _pass(share[case], factor)
         losses[case] = loss_db_from_transmittance(passed)
-    return Row(f"{carrier.segment.name} multiple reflections", "reflections", losses), after
+    name = f"{carrier.side.name} multiple reflections"
+    return Row(name, "reflections", _origin(carrier.side.owner, downstream.owner), losses), after
 
 
 def _noted(notes, owner, function, *args):
-    """``function(*args)``, with the :class:`ValidityWarning` s it raises added to ``notes`` for ``owner``."""
+    """``function(*args)``, with the :class:`ValidityWarning` s it raises added to ``notes`` as
+    (owner, message) for ``owner`` (or the owner the warning names)."""
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", ValidityWarning)
         value = function(*args)
-    notes.extend(f"{getattr(w.message, 'owner', owner)}: {w.message}" for w in caught
+    notes.extend((getattr(w.message, "owner", owner), str(w.message)) for w in caught
                  if issubclass(w.category, ValidityWarning))
     return value
-
-
-def segment_notes(segment):
-    """Notes on a segment's possible but unusual input: its values (:func:`range_notes`) and a
-    metal's index (:func:`linkbudget.config.ranges.index_notes`) on its own faces or in its layers."""
-    notes = range_notes(segment)
-    index = segment.medium_index()
-    if index is not None:
-        notes += index_notes(index)
-    if segment.is_coating:
-        notes += [f"layers[{number}]: {note}" for number, layer_index in enumerate(segment.layer_index)
-                  for note in index_notes(layer_index)]
-    return notes
 
 
 def _coherence_problem(thickness_m, n_real, wavelength_m, spectral_width_m):
@@ -371,122 +344,150 @@ def _note_coherence(owner, thickness_m, n_real, wavelength_m, spectral_width_m):
         warnings.warn(_RowNote(owner, problem), stacklevel=2)
 
 
-def _note_faced_gaps(upstream, joint, wavelength_m, spectral_width_m):
-    """The coherence notes of the media just left between two faces: the medium ``upstream``
-    (entered through a face, a plate with parallel faces) and an air-gap ``joint``'s gap."""
-    if upstream.entered_through_face and upstream.segment.parallel_faces:
-        thinnest_m = min(upstream.segment.path_length_m(case) for case in CASES)
-        _note_coherence(upstream.segment.name, thinnest_m, np.real(upstream.segment.medium_index()),
-                        wavelength_m, spectral_width_m)
-    if joint is not None and joint.joint_type == "air-gap" and joint.gap is not None and joint.gap.low > 0:
-        _note_coherence(joint.name, joint.gap.low, np.real(joint.gap_medium_index()), wavelength_m,
-                        spectral_width_m)
+class _ChainWalk:
+    """The engine's walk along the chain: it appends each segment's row, and inserts the faces,
+    coatings and multiple-reflection sums between media, from the segments' roles alone.
+
+    State between segments: the last medium met (``upstream``, a :class:`_Carrier`), and the
+    joint and the coating met since then.
+    """
+
+    def __init__(self, wavelength_m, cases, spectral_width_m):
+        self.wavelength_m, self.cases, self.spectral_width_m = wavelength_m, cases, spectral_width_m
+        self.rows = []
+        self._end_run()
+
+    def _end_run(self):
+        self.upstream, self.joint, self.coating = None, None, None
+
+    def add(self, segment, role, around, lone):
+        """Append the rows of ``segment`` (of ``role``), and the faces before it."""
+        match role:
+            case Coats():
+                self.coating = (segment, role)
+            case Carries():
+                self._add_medium(segment, role, around, lone)
+            case Joint():
+                self.rows.append(segment.budget_row(self.wavelength_m, self.cases, around))
+                self.joint = (segment, role)
+            case Passes():
+                self.rows.append(segment.budget_row(self.wavelength_m, self.cases, around))
+            case Guides():
+                self.rows.append(segment.budget_row(self.wavelength_m, self.cases, around))
+                self._end_run()
+
+    def _add_medium(self, segment, medium, around, lone):
+        """A medium's bulk row and the faces before it; a ``lone`` window has its two faces to the
+        air around it (:data:`SURROUNDING_INDEX`)."""
+        side = _Side(segment.name, segment.name, medium)
+        share = _stated_share(medium.polarization or "unpolarized", self.cases)
+        air = _Side("air", None, Carries(np.full(np.shape(self.wavelength_m), SURROUNDING_INDEX, dtype=complex)))
+        if lone:
+            self.upstream, self.joint, self.coating = _Carrier(air, 0.0, share, None, None), None, None
+        back_reflectance, angle, entered_through_face, upstream = None, 0.0, False, self.upstream
+        if upstream is not None:
+            angle = upstream.exit_angle_rad if medium.angle_rad is None else medium.angle_rad
+            share = upstream.share if medium.polarization is None else share
+            share, back_reflectance, entered_through_face = self._faces_between(side, angle, share)
+            if entered_through_face:
+                self._note_faced_gaps()
+        n_before = medium.index if upstream is None else upstream.side.medium.index
+        # a tilt carries on through media in contact (their faces are parallel to the tilted one);
+        # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
+        carries_tilt = medium.angle_rad is not None or medium.parallel_faces
+        inside = fresnel.refraction_angle_rad(n_before, medium.index, angle) if carries_tilt else 0.0
+        tangential_index = np.real(n_before) * np.sin(angle) if carries_tilt else 0.0  # Snell: conserved
+        bulk = segment.budget_row(self.wavelength_m, self.cases,
+                                  Around(around.mode_before, around.mode_after, tangential_index))
+        self.rows.append(bulk)
+        self.upstream = _Carrier(side, inside, share, back_reflectance,
+                                 bulk.loss_db if medium.multiple_reflections else None, entered_through_face)
+        self.joint, self.coating = None, None
+        if lone:
+            self._faces_between(air, inside, share)
+            self._note_faced_gaps()
+            self._end_run()
+
+    def _faces_between(self, downstream, angle, share):
+        """Append the faces between the medium upstream and ``downstream`` (a :class:`_Side`), and
+        the sum of the multiple reflections in the upstream medium; return the shares after them,
+        the back-reflectance of the last face, and whether a face was inserted."""
+        rows, share, reflectance, back_reflectance = self._joint_faces(downstream, angle, share)
+        self.rows.extend(rows)
+        upstream = self.upstream
+        if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
+            reflections, share = _multiple_reflections_row(upstream, downstream, reflectance, share)
+            self.rows.append(reflections)
+        return share, back_reflectance, bool(rows)
+
+    def _joint_faces(self, downstream, angle_rad, share):
+        """Rows between two media: (rows, shares after them, reflectance of the first face met,
+        back-reflectance of the last face); reflectances per polarization, ``None`` without a face."""
+        up = self.upstream.side
+        n_up, n_down = up.medium.index, downstream.medium.index
+        need_back = downstream.medium.multiple_reflections
+        if self.coating is not None:
+            coating, coats = self.coating
+            return _coating(coating, coats, self.wavelength_m, n_up, n_down, angle_rad, share, need_back)
+        faces = Faces.CONTACT if self.joint is None else self.joint[1].faces
+        if faces is Faces.NONE or (faces is Faces.CONTACT and np.array_equal(n_up, n_down)):
+            return [], share, None, None
+        if faces is Faces.GAP:
+            joint, role = self.joint
+            gap = _Side(f"{joint.name} gap", joint.name, Carries(role.gap_index))
+            first, share, reflectance, _ = _face(up, gap, _origin(up.owner, joint.name), angle_rad, share, False)
+            angle_gap = fresnel.refraction_angle_rad(n_up, role.gap_index, angle_rad)
+            second, share, _, back = _face(gap, downstream, _origin(joint.name, downstream.owner), angle_gap,
+                                           share, need_back)
+            return first + second, share, reflectance, back
+        return _face(up, downstream, _origin(up.owner, downstream.owner), angle_rad, share, need_back)
+
+    def _note_faced_gaps(self):
+        """The coherence notes of the media just left between two faces: the medium upstream
+        (entered through a face, a plate with parallel faces) and an air-gap joint's gap."""
+        upstream, width = self.upstream, self.spectral_width_m
+        medium = upstream.side.medium
+        if upstream.entered_through_face and medium.parallel_faces:
+            _note_coherence(upstream.side.name, medium.thinnest_m, np.real(medium.index), self.wavelength_m, width)
+        if self.joint is not None and self.joint[1].faces is Faces.GAP and self.joint[1].shortest_gap_m > 0:
+            joint, role = self.joint
+            _note_coherence(joint.name, role.shortest_gap_m, np.real(role.gap_index), self.wavelength_m, width)
 
 
-def budget_rows(segments, wavelength_m, spectral_width_m=None):
+def budget_rows(segments, wavelength_m, spectral_width_m=None, cases=CORNERS):
     """The budget rows: every segment, with the interfaces and coatings between media inserted.
 
     Between two consecutive segments that carry a medium the engine inserts their interface
     (Fresnel, at the angle the downstream segment gives, or the one the upstream segment's
     tilted faces give its exit face), or the coating that sits between them (at the same angle),
     or what the joint of a connector or splice between them says (index-matched: nothing; air
-    gap: two faces). Joints and elements pass the light on between two media; a fibre,
-    waveguide or splitter without a medium of its own ends the run of faces (the light is
-    guided in between). A medium's ``angle`` tilts both of its (parallel) faces and lengthens its
-    path by 1/cos θ; the tilt carries on through media in contact with it and ends at the next
-    gap, fibre or waveguide. Through every face the s and p powers are followed separately (a
-    segment's ``polarization`` states the light arriving at it; unpolarized at the start). No
-    interface is added before the first segment or after the last.
+    gap: two faces). Joints and elements pass the light on between two media; a guide without a
+    medium of its own ends the run of faces. A medium's ``angle`` tilts both of its (parallel)
+    faces and lengthens its path by 1/cos θ; the tilt carries on through media in contact with it
+    and ends at the next gap, fibre or waveguide. Through every face the s and p powers are
+    followed separately (a segment's ``polarization`` states the light arriving at it;
+    unpolarized at the start). No interface is added before the first segment or after the last.
+    What each segment does is its :mod:`~linkbudget.segments.roles` role.
+
+    ``cases`` are the budget cases (:mod:`linkbudget.segments.cases`): the corners, or draws,
+    whose rows then hold (n_draws, n_wavelengths) arrays.
 
     Returns (rows, notes): the notes are the :class:`ValidityWarning` s raised by each segment's
     own model (its mode, its loss), prefixed by its name, and the coherence notes of media
-    between two faces (``spectral_width_m``: the source's, if given).
+    between two faces (``spectral_width_m``: the source's, if given); each row holds its own.
     """
-    notes = [f"{segment.name}: {note}" for segment in segments for note in segment_notes(segment)]
+    notes = [(segment.name, note) for segment in segments for note in segment.input_notes()]
     modes = [_noted(notes, segment.name, segment.mode, wavelength_m) for segment in segments]
-    lone = _lone_windows(segments)
-    rows, upstream, joint, coating = [], None, None, None
-    for position, segment in enumerate(segments):
-        around = {"mode_before": modes[position - 1] if position else None,
-                  "mode_after": modes[position + 1] if position + 1 < len(segments) else None}
-        upstream, joint, coating = _noted(notes, segment.name, _add_segment_rows, rows, segment, around,
-                                          wavelength_m, upstream, joint, coating, lone[position], spectral_width_m)
-    return tuple(rows), tuple(dict.fromkeys(notes))  # a note said once, where its owner is first met
-
-
-def _faces_between(rows, upstream, segment, joint, coating, wavelength_m, angle, share):
-    """Append the faces between the medium of ``upstream`` and that of ``segment`` (and the sum of
-    the multiple reflections in ``upstream``); return the shares after them and the back-
-    reflectance of the last face."""
-    joint_rows, share, reflectance, back_reflectance = _joint_faces(
-        upstream, segment, joint, coating, wavelength_m, angle, share)
-    rows.extend(joint_rows)
-    if upstream.single_pass_db is not None and reflectance is not None and upstream.back_reflectance is not None:
-        reflections, share = _multiple_reflections_row(upstream, reflectance, share)
-        rows.append(reflections)
-    return share, back_reflectance, bool(joint_rows)
-
-
-def _add_segment_rows(rows, segment, around, wavelength_m, upstream, joint, coating, lone=False,
-                      spectral_width_m=None):
-    """Append the rows of ``segment`` (and the faces before it); return the new state.
-
-    A ``lone`` window has its two faces to the air around it (:data:`SURROUNDING_INDEX`).
-    """
-    if segment.is_coating:
-        return upstream, joint, segment
-    index = segment.medium_index()
-    if index is None:
-        rows.append(segment.budget_row(wavelength_m, **around))
-        if not segment.passes_faces:
-            return None, None, None
-        return upstream, segment if segment.sets_joint else joint, coating
-    back_reflectance, angle = None, 0.0
-    polarization = segment.polarization or "unpolarized"
-    share = _stated_share(polarization)
-    surroundings = _Surroundings(np.full(np.shape(wavelength_m), SURROUNDING_INDEX, dtype=complex)) if lone else None
-    if lone:
-        upstream, joint, coating = _Carrier(surroundings, 0.0, share, None, None), None, None
-    entered_through_face = False
-    if upstream is not None:
-        angle = upstream.exit_angle_rad if segment.angle is None else segment.angle
-        share = upstream.share if segment.polarization is None else share
-        share, back_reflectance, entered_through_face = _faces_between(
-            rows, upstream, segment, joint, coating, wavelength_m, angle, share)
-        if entered_through_face:
-            _note_faced_gaps(upstream, joint, wavelength_m, spectral_width_m)
-    n_before = index if upstream is None else upstream.segment.medium_index()
-    # a tilt carries on through media in contact (their faces are parallel to the tilted one);
-    # a gap, fibre or waveguide lies along the beam, so the ray inside it is at normal incidence
-    carries_tilt = segment.angle is not None or segment.parallel_faces
-    inside = fresnel.refraction_angle_rad(n_before, index, angle) if carries_tilt else 0.0
-    tangential_index = np.real(n_before) * np.sin(angle) if carries_tilt else 0.0  # Snell: conserved
-    bulk = segment.budget_row(wavelength_m, tangential_index=tangential_index, **around)
-    rows.append(bulk)
-    upstream = _Carrier(segment, inside, share, back_reflectance,
-                        bulk.loss_db if getattr(segment, "multiple_reflections", False) else None,
-                        entered_through_face)
-    if lone:
-        _faces_between(rows, upstream, surroundings, None, None, wavelength_m, inside, share)
-        _note_faced_gaps(upstream, None, wavelength_m, spectral_width_m)
-        return None, None, None
-    return upstream, None, None
-
-
-def _row_segments(rows, segments):
-    """The chain index each row belongs to: a segment's own row to it, a multiple-reflection row to
-    its medium (the last segment before it), an inserted face to the segment after it."""
-    owners, pending, position = [], [], 0
-    for number, row in enumerate(rows):
-        if row.kind == "interface":
-            pending.append(number)
-        elif row.kind != "reflections":
-            position = next((i for i in range(position, len(segments)) if segments[i].name == row.name), position)
-            for face in pending:
-                owners[face] = position
-            pending = []
-        owners.append(position)
-    return owners
+    roles = [segment.role() for segment in segments]
+    walk = _ChainWalk(wavelength_m, cases, spectral_width_m)
+    for position, (segment, role, lone) in enumerate(zip(segments, roles, _lone_windows(roles), strict=True)):
+        around = Around(modes[position - 1] if position else None,
+                        modes[position + 1] if position + 1 < len(segments) else None)
+        _noted(notes, segment.name, walk.add, segment, role, around, lone)
+    notes = list(dict.fromkeys(notes))  # a note said once, where its owner is first met
+    rows = tuple(replace(row, notes=tuple(message for owner, message in notes if owner == row.id))
+                 for row in walk.rows)
+    return rows, tuple(f"{owner}: {message}" for owner, message in notes)
 
 
 def _not_finite_problem(result, link):
@@ -502,8 +503,10 @@ def _not_finite_problem(result, link):
     number, index = (int(i) for i in np.argwhere(bad)[0])
     row = result.rows[number]
     values = ", ".join(f"{case} {result.loss_db[case][number, index]:g} dB" for case in CASES)
-    owner = _row_segments(result.rows, link.segments)[number]
-    path = ("chain", owner)
+    names = [segment.name for segment in link.segments]
+    # an inserted face is placed at the segment after it; the light bouncing in a medium, at it
+    owner = row.origin[0] if row.kind == "reflections" else row.origin[-1]
+    path = ("chain", names.index(owner))
     mark = None if link.positions is None else link.positions.mark(path)
     from linkbudget.report.summary import nm
     from linkbudget.text import escaped
@@ -540,7 +543,7 @@ def evaluate(link, *, required_margin_db=None):
     notes = (*(f"{part}: {note}" for part in ("source", "receiver") for note in range_notes(getattr(spec, part))),
              *notes)
     power = spec.source.power
-    source_dbm = {case: np.full(wavelength_m.shape, power.at(case, larger_hurts=False)) for case in CASES}
+    source_dbm = {case.name: np.full(wavelength_m.shape, case.value(power, larger_hurts=False)) for case in CORNERS}
     receiver = spec.receiver
     result = LinkResult(
         title=spec.title,

@@ -111,16 +111,16 @@ def test_evaluate_medium_flux_law_forms_agree():
     for form in forms:
         result = evaluate(f"  - {{kind: medium, thickness: 1 cm, {form}}}", wavelength="wavelength: 1550 nm")
         # the bulk row (with an index the lone window also has its two faces to air around it)
-        (bulk,) = [row for row in result.rows if row.kind == "medium"]
+        (bulk,) = [row for row in result.rows if row.shown_kind == "medium"]
         assert_allclose(bulk.loss_db["typ"], [expected], rtol=1e-12, err_msg=form)
 
 
 def test_result_dict_minimum_contract():
     result = evaluate("  - {kind: element, loss: {typ: 1 dB, max: 2 dB}}", wavelength="channels: [1310 nm, 1550 nm]")
     data = linkbudget.result_dict(result)
-    assert data["schema"] == "linkbudget.result/1"
+    assert data["schema"] == "linkbudget.result/2"
     assert data["wavelengths_nm"] == pytest.approx([1310.0, 1550.0])
-    assert data["segments"][0]["loss_db"] == {"typ": [1.0, 1.0], "worst": [2.0, 2.0], "best": [1.0, 1.0]}
+    assert data["rows"][0]["loss_db"] == {"typ": [1.0, 1.0], "worst": [2.0, 2.0], "best": [1.0, 1.0]}
     assert data["margin_db"]["worst"] == [18.0, 18.0]
     assert data["closes"] is True
     assert data["cautions"]

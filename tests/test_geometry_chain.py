@@ -123,7 +123,7 @@ def test_joint_gap_10um_in_air_ghatak_8_81():
     result = evaluate(joint({"gap": "10 um"}))
     n_air = load_material("air").index(np.array([WL])).real
     reduced = WL * 10e-6 / (2 * np.pi * n_air * W**2)
-    assert [r.kind for r in result.rows] == ["fiber", "connector", "fiber"]
+    assert [r.shown_kind for r in result.rows] == ["fiber", "connector", "fiber"]
     assert_allclose(row(result, "joint").loss_db["typ"], [0.0360], atol=WORKED)
     assert_allclose(row(result, "joint").loss_db["typ"], loss_db(1 / (1 + reduced**2)), rtol=EXACT)
 
@@ -134,10 +134,10 @@ def test_joint_gap_between_fibres_with_index_adds_two_faces():
     n_core = 1.4682
     result = evaluate(joint({"gap": "10 um"}, before=fibre("f1", index=n_core), after=fibre("f2", index=n_core)))
     n_air = load_material("air").index(np.array([WL])).real
-    faces = [r for r in result.rows if r.kind == "interface"]
+    faces = [r for r in result.rows if r.shown_kind == "interface"]
     assert [f.name for f in faces] == ["f1 → joint gap", "joint gap → f2"]
     for face in faces:
-        assert_allclose(face.detail["reflectance"], ((n_core - n_air) / (n_core + n_air)) ** 2, rtol=EXACT)
+        assert_allclose(face.reflectance_seen, ((n_core - n_air) / (n_core + n_air)) ** 2, rtol=EXACT)
     assert_allclose(row(result, "joint").loss_db["typ"], [0.0360], atol=WORKED)
 
 
@@ -146,7 +146,7 @@ def test_joint_gap_50um_index_matched_ghatak_8_81():
     result = evaluate(joint({"gap": "50 um", "gap_index": 1.46, "joint": "index-matched"},
                             before=fibre("f1", index=1.46), after=fibre("f2", index=1.46)))
     reduced = WL * 50e-6 / (2 * np.pi * 1.46 * W**2)
-    assert [r.kind for r in result.rows] == ["fiber", "connector", "fiber"]
+    assert [r.shown_kind for r in result.rows] == ["fiber", "connector", "fiber"]
     assert_allclose(row(result, "joint").loss_db["typ"], [0.4045], atol=WORKED)
     assert_allclose(row(result, "joint").loss_db["typ"], loss_db(1 / (1 + reduced**2)), rtol=EXACT)
 
@@ -155,7 +155,7 @@ def test_joint_datasheet_loss_wins_and_geometry_is_shown():
     joint_row = row(evaluate(joint({"loss": "0.5 dB", "offset": "1 um"})), "joint")
     for case in ("typ", "worst", "best"):
         assert_allclose(joint_row.loss_db[case], [0.5], rtol=EXACT)
-    assert_allclose(joint_row.detail["geometric_loss_db"]["typ"], [0.1606], atol=WORKED)
+    assert_allclose(joint_row.geometric_estimate_db["typ"], [0.1606], atol=WORKED)
 
 
 def test_joint_worst_case_is_the_worst_offset_corner():
@@ -258,8 +258,8 @@ def test_gap_waist_to_aperture_siegman():
     result = row(evaluate(aperture_link({"waist": "1 mm"}, index=1.0)), "path")
     expected = siegman_aperture_loss(1e-3, 100.0, 5e-3)
     assert_allclose(result.loss_db["typ"], [expected], rtol=EXACT)
-    assert_allclose(result.detail["beam_loss_db"]["typ"], [expected], rtol=EXACT)
-    assert_allclose(result.detail["ambient_loss_db"]["typ"], [0.0], atol=0)
+    assert_allclose(result.loss_parts_db["beam"]["typ"], [expected], rtol=EXACT)
+    assert_allclose(result.loss_parts_db["medium"]["typ"], [0.0], atol=0)
 
 
 def test_gap_waist_to_aperture_in_catalog_air():
@@ -356,10 +356,10 @@ def test_full_link_total_is_the_sum_of_the_published_models():
     assert_allclose(result.loss_db["typ"][:, 0], list(expected.values()), rtol=1e-11)
     assert_allclose(result.cumulative_loss_db["typ"][-1], [sum(expected.values())], rtol=1e-11)
 
-    segments = {segment["name"]: segment for segment in linkbudget.result_dict(result)["segments"]}
+    segments = {segment["name"]: segment for segment in linkbudget.result_dict(result)["rows"]}
     parts = segments["chip"]["loss_parts_db"]
     assert_allclose([parts[p]["typ"][0] for p in ("propagation", "bends", "crossings")], [1.0, 0.2, 0.4], rtol=1e-12)
-    assert segments["star"]["port"] == 3
+    assert segments["star"]["facts"] == ["port 3"]
     assert_allclose(segments["star"]["loss_parts_db"]["split"]["worst"], [10 * np.log10(8)],
                     rtol=0, atol=5e-10)  # the JSON writes dB to 1e-9
 

@@ -23,6 +23,7 @@ from numpy.testing import assert_allclose
 import linkbudget
 from linkbudget.materials.library import load_material
 from linkbudget.physics.thinfilm import incoherent_slab
+from tests.result_json import seen
 from tests.segments.linktext import evaluate, link_text, only_problem, row
 
 # Both sides compute the same closed-form physics in double precision; 1e-9 leaves room for the
@@ -144,8 +145,8 @@ def test_coating_row_matches_tmm_coh_tmm(stack, angle, polarization):
     expected_r, expected_t, _ = tmm_coherent(
         [index_of("air"), *indices, index_of("fused-silica")], thicknesses, angle_rad, CHANNELS_M, polarization)
     coating = row(result, "AR coating")
-    assert coating.kind == "coating"
-    assert_allclose(coating.detail["reflectance"], expected_r, rtol=0, atol=TIGHT)
+    assert coating.shown_kind == "coating"
+    assert_allclose(coating.reflectance_seen, expected_r, rtol=0, atol=TIGHT)
     for case in ("typ", "worst", "best"):
         assert_allclose(coating.loss_db[case], loss_db(expected_t), rtol=0, atol=TIGHT)
 
@@ -165,11 +166,11 @@ def test_bare_exit_face_matches_fresnel_and_tmm(angle, polarization):
         expected_r[k], expected_t[k], _ = tmm_coherent(
             [n_silica[k:k + 1], n_air[k:k + 1]], [], inside_rad[k], CHANNELS_M[k:k + 1], polarization)[:, 0]
     face = row(result, "window → far side")
-    assert face.kind == "interface"
-    assert_allclose(face.detail["reflectance"], expected_r, rtol=0, atol=TIGHT)
+    assert face.shown_kind == "interface"
+    assert_allclose(face.reflectance_seen, expected_r, rtol=0, atol=TIGHT)
     assert_allclose(face.loss_db["typ"], loss_db(expected_t), rtol=0, atol=TIGHT)
     if angle is None:  # normal incidence: the Fresnel formula itself
-        assert_allclose(face.detail["reflectance"], fresnel_normal(n_silica, n_air), rtol=0, atol=TIGHT)
+        assert_allclose(face.reflectance_seen, fresnel_normal(n_silica, n_air), rtol=0, atol=TIGHT)
 
 
 @pytest.mark.parametrize("angle, polarization", ANGLES)
@@ -183,7 +184,7 @@ def test_coating_row_energy_balance_and_absorptance_matches_tmm(stack, angle, po
     *_, expected_a = tmm_coherent(
         [index_of("air"), *indices, index_of("fused-silica")], thicknesses, angle_rad, CHANNELS_M, polarization)
     coating = row(result, "AR coating")
-    reflectance, absorptance = coating.detail["reflectance"], coating.detail["absorptance"]
+    reflectance, absorptance = coating.reflectance_seen, coating.absorptance_seen
     assert_allclose(reflectance + transmittance(coating.loss_db["typ"]) + absorptance, 1.0, rtol=0, atol=1e-12)
     assert_allclose(absorptance, expected_a, rtol=0, atol=TIGHT)
     assert np.all(absorptance > 1e-3)  # the absorbing layer really absorbs
@@ -196,14 +197,16 @@ def test_coating_row_lossless_layers_absorb_nothing(angle, polarization):
               {"index": 2.0, "thickness": "150 nm"},
               {"material": "magnesium-fluoride", "quarter_wave": "1550 nm"}]
     coating = row(evaluate(coated_window(layers, angle, polarization), CHANNELS), "AR coating")
-    assert_allclose(coating.detail["absorptance"], 0.0, rtol=0, atol=1e-12)
-    assert_allclose(coating.detail["reflectance"] + transmittance(coating.loss_db["typ"]), 1.0, rtol=0, atol=1e-12)
+    assert_allclose(coating.absorptance_seen, 0.0, rtol=0, atol=1e-12)
+    assert_allclose(coating.reflectance_seen + transmittance(coating.loss_db["typ"]), 1.0, rtol=0, atol=1e-12)
 
 
 def test_coating_in_json_carries_reflectance_and_absorptance():
     data = linkbudget.result_dict(evaluate(coated_window(STACKS["gold"], None, "unpolarized"), CHANNELS))
-    (coating,) = [segment for segment in data["segments"] if segment["kind"] == "coating"]
-    assert len(coating["reflectance"]) == len(coating["absorptance"]) == len(CHANNELS_M)
+    (coating,) = [segment for segment in data["rows"] if segment["kind"] == "coating"]
+    for per_polarization in (coating["reflectance"], coating["absorptance"]):
+        assert set(per_polarization) == {"s", "p"}
+        assert all(len(values) == len(CHANNELS_M) for values in per_polarization.values())
 
 
 # ---- every interface is visible ----
@@ -221,15 +224,15 @@ def test_interface_rows_one_between_each_pair_of_different_indices():
     # Fresnel at normal incidence (Born & Wolf): R = ((n1 − n2)/(n1 + n2))² for each pair; equal
     # indices (B, C) add no row.
     result = evaluate(media_chain(1.5, 1.7, 1.7, 2.0))
-    faces = {r.name: r for r in result.rows if r.kind == "interface"}
+    faces = {r.name: r for r in result.rows if r.shown_kind == "interface"}
     pairs = {"in → A": (1.0, 1.5), "A → B": (1.5, 1.7), "C → D": (1.7, 2.0), "D → out": (2.0, 1.0)}
     assert list(faces) == list(pairs)
     for name, (n1, n2) in pairs.items():
-        assert_allclose(faces[name].detail["reflectance"], [fresnel_normal(n1, n2)], rtol=1e-12)
+        assert_allclose(faces[name].reflectance_seen, [fresnel_normal(n1, n2)], rtol=1e-12)
         assert_allclose(faces[name].loss_db["worst"], loss_db(1 - fresnel_normal(n1, n2)), rtol=1e-12)
-    json_faces = [s for s in linkbudget.result_dict(result)["segments"] if s["kind"] == "interface"]
+    json_faces = [s for s in linkbudget.result_dict(result)["rows"] if s["kind"] == "interface"]
     assert [s["name"] for s in json_faces] == list(pairs)
-    assert_allclose([s["reflectance"][0] for s in json_faces], [fresnel_normal(*p) for p in pairs.values()],
+    assert_allclose([seen(s, "reflectance")[0] for s in json_faces], [fresnel_normal(*p) for p in pairs.values()],
                     rtol=0, atol=5e-13)  # the JSON writes fractions to 1e-12
 
 
@@ -241,27 +244,27 @@ def fibre_joint(joint_keys, n_after=1.45):
 
 def test_interface_rows_physical_contact_between_fibres_of_different_index():
     result = evaluate(fibre_joint({}))
-    (face,) = [r for r in result.rows if r.kind == "interface"]
+    (face,) = [r for r in result.rows if r.shown_kind == "interface"]
     assert face.name == "f1 → f2"
-    assert_allclose(face.detail["reflectance"], [fresnel_normal(1.4682, 1.45)], rtol=1e-12)
+    assert_allclose(face.reflectance_seen, [fresnel_normal(1.4682, 1.45)], rtol=1e-12)
 
 
 def test_interface_rows_index_matched_joint_removes_the_face():
     # Gel or adhesive matched to the fibres: no Fresnel term (STYLE.md identity: an
     # index-matched interface reflects nothing); only the datasheet loss remains.
     result = evaluate(fibre_joint({"joint": "index-matched"}))
-    assert [r.kind for r in result.rows] == ["fiber", "connector", "fiber"]
+    assert [r.shown_kind for r in result.rows] == ["fiber", "connector", "fiber"]
     assert_allclose(result.loss_db["typ"].sum(), 0.2 + 2 * 0.5e-3, rtol=1e-12)
 
 
 def test_interface_rows_air_gap_joint_gives_two_faces_through_air():
     # Two Fresnel faces, fibre → air and air → fibre, air from the catalog (Ciddor 1996).
     result = evaluate(fibre_joint({"joint": "air-gap"}))
-    faces = [r for r in result.rows if r.kind == "interface"]
+    faces = [r for r in result.rows if r.shown_kind == "interface"]
     assert [f.name for f in faces] == ["f1 → mate gap", "mate gap → f2"]
     n_air = index_of("air", np.array([1550e-9]))
-    assert_allclose(faces[0].detail["reflectance"], fresnel_normal(1.4682, n_air), rtol=1e-12)
-    assert_allclose(faces[1].detail["reflectance"], fresnel_normal(n_air, 1.45), rtol=1e-12)
+    assert_allclose(faces[0].reflectance_seen, fresnel_normal(1.4682, n_air), rtol=1e-12)
+    assert_allclose(faces[1].reflectance_seen, fresnel_normal(n_air, 1.45), rtol=1e-12)
 
 
 # ---- published worked values through a link ----
@@ -278,7 +281,7 @@ def test_published_silicon_facet_li_1980(medium):
     # Li 1980: n(1.55 µm) = 3.4757 (C) → R = 30.597 %, 1.5862 dB a face (REFERENCES.md, D; ±1 in
     # the last digit shown: atol 5e-6 and 5e-5 dB).
     face = face_after_vacuum(medium)
-    assert_allclose(face.detail["reflectance"], [0.30597], atol=5e-6)
+    assert_allclose(face.reflectance_seen, [0.30597], atol=5e-6)
     assert_allclose(face.loss_db["typ"], [1.5862], atol=5e-5)
 
 
@@ -291,15 +294,15 @@ def test_published_silica_face_malitson_sellmeier():
     n = np.sqrt(1 + sum(bi * wl_um**2 / (wl_um**2 - ci**2) for bi, ci in zip(b, c, strict=True)))
     assert_allclose(n, 1.44402, atol=5e-6)
     face = face_after_vacuum({"material": "fused-silica"})
-    assert_allclose(face.detail["reflectance"], [fresnel_normal(1.0, n)], rtol=0, atol=TIGHT)
-    assert_allclose(face.detail["reflectance"], [0.033007], atol=5e-7)
+    assert_allclose(face.reflectance_seen, [fresnel_normal(1.0, n)], rtol=0, atol=TIGHT)
+    assert_allclose(face.reflectance_seen, [0.033007], atol=5e-7)
     assert_allclose(face.loss_db["typ"], [0.1458], atol=5e-5)
 
 
 def test_published_glass_n_1_5_reflects_four_percent():
     # ((1.5 − 1)/(1.5 + 1))² = 0.04 exactly (Hecht; REFERENCES.md 4.000 %).
     face = face_after_vacuum({"index": 1.5})
-    assert_allclose(face.detail["reflectance"], [0.04], rtol=1e-12)
+    assert_allclose(face.reflectance_seen, [0.04], rtol=1e-12)
     assert_allclose(face.loss_db["typ"], [-10 * np.log10(0.96)], rtol=1e-12)
 
 
@@ -309,17 +312,17 @@ def test_published_brewster_angle_p_polarised_entry_face_loses_nothing():
     # cos²(2θ_B) = ((n² − 1)/(n² + 1))² (Fresnel with θ_i + θ_t = 90°, Hecht); the angle rounding
     # moves it by ~1e-6.
     p_face = face_after_vacuum({"index": 1.5}, angle="56.310 deg", polarization="p")
-    assert p_face.detail["reflectance"][0] < 1e-10
+    assert p_face.reflectance_seen[0] < 1e-10
     assert 0 <= p_face.loss_db["typ"][0] < 1e-9
     s_face = face_after_vacuum({"index": 1.5}, angle="56.310 deg", polarization="s")
-    assert_allclose(s_face.detail["reflectance"], [((1.5**2 - 1) / (1.5**2 + 1)) ** 2], atol=1e-5)
+    assert_allclose(s_face.reflectance_seen, [((1.5**2 - 1) / (1.5**2 + 1)) ** 2], atol=1e-5)
 
 
 @pytest.mark.parametrize("polarization, expected", [("s", 0.09201), ("p", 0.008466)])
 def test_published_45_degrees_on_glass(polarization, expected):
     # At 45° on n = 1.5: Rs = 9.201 %, Rp = 0.8466 % (REFERENCES.md, D; 4 digits: rtol 1e-4).
     face = face_after_vacuum({"index": 1.5}, angle="45 deg", polarization=polarization)
-    assert_allclose(face.detail["reflectance"], [expected], rtol=1e-4)
+    assert_allclose(face.reflectance_seen, [expected], rtol=1e-4)
 
 
 def quarter_wave_link(quarter_waves=1):
@@ -336,17 +339,17 @@ def test_published_quarter_wave_mgf2_on_glass():
     # Macleod ch. 3: R = ((n0·ns − n1²)/(n0·ns + n1²))²; 1.38 on 1.52 → 1.2601 %, quarter-wave
     # thickness at 550 nm 99.638 nm (REFERENCES.md, C/D; ±1 in the last digit shown).
     link = quarter_wave_link()
-    assert_allclose(link.segments[1].thickness_m, [99.638e-9], atol=5e-13)
+    assert_allclose(link.segments[1].role().thickness_m, [99.638e-9], atol=5e-13)
     coating = row(linkbudget.evaluate(link), "MgF2")
-    assert_allclose(coating.detail["reflectance"], [0.012601], atol=5e-7)
-    assert_allclose(coating.detail["reflectance"], [((1.52 - 1.38**2) / (1.52 + 1.38**2)) ** 2], rtol=1e-12)
+    assert_allclose(coating.reflectance_seen, [0.012601], atol=5e-7)
+    assert_allclose(coating.reflectance_seen, [((1.52 - 1.38**2) / (1.52 + 1.38**2)) ** 2], rtol=1e-12)
 
 
 def test_published_half_wave_layer_is_absent():
     # A half-wave layer gives back the bare reflectance 4.2580 % (Macleod; REFERENCES.md, D).
     coating = row(linkbudget.evaluate(quarter_wave_link(quarter_waves=2)), "MgF2")
-    assert_allclose(coating.detail["reflectance"], [fresnel_normal(1.0, 1.52)], rtol=1e-12)
-    assert_allclose(coating.detail["reflectance"], [0.042580], atol=5e-7)
+    assert_allclose(coating.reflectance_seen, [fresnel_normal(1.0, 1.52)], rtol=1e-12)
+    assert_allclose(coating.reflectance_seen, [0.042580], atol=5e-7)
 
 
 # ---- multiple reflections in a thick slab ----
@@ -507,7 +510,7 @@ def test_material_user_file_next_to_the_link(tmp_path, monkeypatch):
     monkeypatch.chdir(elsewhere)
     result = linkbudget.evaluate(linkbudget.load(link_path))
     n = 1.53 + 2.0e-6j
-    assert_allclose(row(result, "vacuum → lens").detail["reflectance"], [fresnel_normal(1.0, n)], rtol=1e-12)
+    assert_allclose(row(result, "vacuum → lens").reflectance_seen, [fresnel_normal(1.0, n)], rtol=1e-12)
     alpha = 4 * np.pi * 2.0e-6 / 1550e-9
     assert_allclose(row(result, "lens").loss_db["typ"], [10 * np.log10(np.e) * alpha * 10e-3], rtol=1e-12)
 
@@ -559,7 +562,7 @@ def test_oblique_ray_continues_into_the_next_medium():
     exact = normal_decay_transmittance(2.0 + 1j * kappa_of_attenuation(1e3), 1e-3, np.deg2rad(30.0))
     assert_allclose(row(result, "B").loss_db["typ"], [loss_db(exact)], rtol=1e-12)
     exit_face = tmm.coh_tmm("s", [2.0, 1.0], [np.inf, np.inf], theta_b, 1550.0)
-    assert_allclose(row(result, "B → out").detail["reflectance"], [exit_face["R"]], rtol=0, atol=TIGHT)
+    assert_allclose(row(result, "B → out").reflectance_seen, [exit_face["R"]], rtol=0, atol=TIGHT)
 
 
 def test_polarized_plate_with_reflections_before_an_angled_block_keeps_both_shares():
@@ -573,7 +576,7 @@ def test_polarized_plate_with_reflections_before_an_angled_block_keeps_both_shar
          "polarization": "s", "multiple_reflections": True},
         {"name": "block", "kind": "medium", "thickness": "1 mm", "index": 1.7},
     ])
-    kinds = [row.kind for row in result.rows]
+    kinds = [row.shown_kind for row in result.rows]
     assert kinds == ["gap", "interface", "medium", "interface", "reflections", "medium"]
     expected = tmm.inc_tmm("s", [1.0, 1.5, 1.7], [np.inf, 1e3, np.inf], ["i", "i", "i"], np.deg2rad(10), 1550)["T"]
     assert_allclose(result.cumulative_loss_db["typ"][-1], -10 * np.log10([expected]), rtol=1e-9)
@@ -587,7 +590,7 @@ def test_guided_fibre_without_index_ends_the_faces():
         {"name": "pigtail", "kind": "fiber", "length": "2 km", "attenuation": "0.3 dB/km"},
         {"name": "window", "kind": "medium", "thickness": "1 mm", "material": "fused-silica"},
     ])
-    assert [row.kind for row in result.rows] == ["gap", "fiber", "medium"]
+    assert [row.shown_kind for row in result.rows] == ["gap", "fiber", "medium"]
 
 
 @pytest.mark.parametrize("angle, polarization", ANGLES)
@@ -601,7 +604,7 @@ def test_coating_row_lossless_round_off_prints_as_zero(angle, polarization):
               {"index": 2.0, "thickness": "150 nm"},
               {"material": "magnesium-fluoride", "quarter_wave": "1550 nm"}]
     coating = row(evaluate(coated_window(layers, angle, polarization), CHANNELS), "AR coating")
-    assert np.all(coating.detail["absorptance"] == 0.0)
+    assert np.all(coating.absorptance_seen == 0.0)
     assert all("A 0 %" in row_note(coating, index) for index in range(len(CHANNELS_M)))
 
 
@@ -610,7 +613,7 @@ def test_coating_row_small_real_absorptance_is_kept():
     # power (flux law, order of magnitude): far above the floor, so it must not be zeroed.
     layers = [{"index": "1.5+1e-6j", "thickness": "100 nm"}]
     coating = row(evaluate(coated_window(layers, None, "unpolarized"), CHANNELS), "AR coating")
-    assert np.all(coating.detail["absorptance"] > 1e-7)
+    assert np.all(coating.absorptance_seen > 1e-7)
 
 
 # ---- a lone window has its faces to the air around it ----
@@ -631,7 +634,7 @@ def test_lone_window_has_two_faces_to_air_closed_form():
     r_face = ((n - 1) / (n + 1)) ** 2
     for name in ("air → window", "window → air"):
         face = row(result, name)
-        assert_allclose(face.detail["reflectance"], [r_face], rtol=1e-12)
+        assert_allclose(face.reflectance_seen, [r_face], rtol=1e-12)
         assert_allclose(face.loss_db["typ"], [loss_db(1 - r_face)], rtol=1e-12)
     bulk = 10 * np.log10(np.e) * 4 * np.pi * kappa / wavelength_m * thickness_m
     assert_allclose(row(result, "window").loss_db["typ"], [bulk], rtol=1e-12)
@@ -643,7 +646,7 @@ def test_lone_window_in_shipped_quarry_example_is_not_zero():
     text = (Path(__file__).resolve().parents[1] / "configs" / "quarry-uplink.yaml").read_text()
     result = linkbudget.evaluate(linkbudget.load(text))
     r_face = ((1.447 - 1) / (1.447 + 1)) ** 2  # Fresnel, normal incidence (Hecht): 3.337 %
-    faces = [r for r in result.rows if r.kind == "interface"]
+    faces = [r for r in result.rows if r.shown_kind == "interface"]
     assert [f.name for f in faces] == ["air → receiver enclosure window", "receiver enclosure window → air"]
     assert_allclose([f.loss_db["typ"][0] for f in faces], [loss_db(1 - r_face)] * 2, rtol=1e-12)
 
@@ -665,7 +668,7 @@ def test_window_touching_a_guide_gets_no_air_faces():
     # known, so the window is not lone and no air face is invented.
     chain = [{"name": "cladding", "kind": "medium", "thickness": "1 mm", "index": 1.5},
              {"name": "chip", "kind": "waveguide", "length": "1 cm", "attenuation": "1 dB/cm"}]
-    assert [r.kind for r in evaluate(chain).rows] == ["medium", "waveguide"]
+    assert [r.shown_kind for r in evaluate(chain).rows] == ["medium", "waveguide"]
 
 
 # One medium has one complex index N = n + iκ: the κ given as `kappa`, `absorption` (α) or

@@ -402,5 +402,5 @@ def test_load_edited_text_or_config_error(text, link_file):
 def test_load_fuzz_base_link_is_valid():
     """The fuzz starts from a valid link, so its edits test the error paths and not a broken base."""
     result = linkbudget.evaluate(linkbudget.load(yaml.safe_dump(BASE_LINK, sort_keys=False)))
-    assert [row.name for row in result.rows if row.kind != "interface"] == [
+    assert [row.name for row in result.rows if row.shown_kind != "interface"] == [
         item["name"] for item in BASE_LINK["chain"]]

@@ -40,6 +40,7 @@ from tests.closedforms import (
     silica,
 )
 from tests.conftest import run_cli
+from tests.result_json import seen
 
 README = (Path(__file__).resolve().parents[1] / "README.md").read_text(encoding="utf-8")
 DEG = math.pi / 180
@@ -107,7 +108,7 @@ def run_text(link_text, files=(), *options):
 
 
 def rows(data, *names):
-    found = {segment["name"]: segment for segment in data["segments"]}
+    found = {segment["name"]: segment for segment in data["rows"]}
     return [found[name] for name in names]
 
 
@@ -124,27 +125,27 @@ def worst(entry, key="loss_db"):
 def test_readme_joints_between_media_interface_rows():
     data = run_json(readme_link(yaml_block("name: tilted window")))
     readme_says("At 1550 nm this gives four interface rows")
-    assert sum(segment["kind"] == "interface" for segment in data["segments"]) == 4
+    assert sum(segment["kind"] == "interface" for segment in data["rows"]) == 4
     fibre_faces = rows(data, "pigtail → air space", "window to probe → probe lead")
     window_faces = rows(data, "air space → tilted window", "tilted window → window to probe")
     (gel,) = rows(data, "gel joint")
     for entry in fibre_faces:
         assert_readme_numbers("`window to probe → probe lead` (R 3.59 %, 0.16 dB each)",
-                              [100 * entry["reflectance"][0], typ(entry)])
+                              [100 * seen(entry, "reflectance")[0], typ(entry)])
     for entry in window_faces:
         assert_readme_numbers("the two tilted faces of the window (R 3.39 %, 0.15 dB each)",
-                              [100 * entry["reflectance"][0], typ(entry)])
+                              [100 * seen(entry, "reflectance")[0], typ(entry)])
     assert_readme_numbers("the gel joint adds only its 0.1 dB", [typ(gel)])
     # closed forms: the cleaved end n = 1.468 into Ciddor air, R = ((1.468 − n)/(1.468 + n))²;
     # the 8° s-polarised faces of fused silica (Malitson) by Fresnel and Snell (Hecht, Optics)
     n_air, n_glass = air(1550.0), silica(1550.0)
     for entry in fibre_faces:
-        assert_allclose(entry["reflectance"][0], face(1.468, n_air)[0], rtol=0, atol=1e-9)
+        assert_allclose(seen(entry, "reflectance")[0], face(1.468, n_air)[0], rtol=0, atol=1e-9)
     inside = math.asin(n_air * math.sin(8 * DEG) / n_glass)
     for entry, (n1, n2, angle) in zip(window_faces, ((n_air, n_glass, 8 * DEG), (n_glass, n_air, inside)),
                                       strict=True):
         r, t = oblique_face_s(n1, n2, angle)
-        assert_allclose([entry["reflectance"][0], typ(entry)], [r, db(t)], rtol=0, atol=CLOSED_FORM_TOL)
+        assert_allclose([seen(entry, "reflectance")[0], typ(entry)], [r, db(t)], rtol=0, atol=CLOSED_FORM_TOL)
     text = collapsed(run_text(readme_link(yaml_block("name: tilted window"))))
     assert "R 3.59 %" in text and "R 3.39 %" in text
 
@@ -152,12 +153,12 @@ def test_readme_joints_between_media_interface_rows():
 def test_readme_coatings_front_and_back():
     data = run_json(readme_link(yaml_block("name: front AR")))
     front, back = rows(data, "front AR", "back attenuator film")
-    assert_readme_numbers("the front coating loses 0.07 dB (R 1.7 %)", [typ(front), 100 * front["reflectance"][0]])
+    assert_readme_numbers("the front coating loses 0.07 dB (R 1.7 %)", [typ(front), 100 * seen(front, "reflectance")[0]])
     readme_says("An absorptance below 10⁻¹² in magnitude is round-off of\n1 − R − T (a lossless stack leaves a "
                 "few 10⁻¹⁶) and is given as exactly 0.")
-    assert front["absorptance"][0] == 0.0  # MgF2 (Dodge) and Ta2O5 (Gao, κ = 0 at 1550 nm) absorb nothing
+    assert seen(front, "absorptance")[0] == 0.0  # MgF2 (Dodge) and Ta2O5 (Gao, κ = 0 at 1550 nm) absorb nothing
     assert_readme_numbers("the back film 1.67 dB (R 25 %, A 6.6 %)",
-                          [typ(back), 100 * back["reflectance"][0], 100 * back["absorptance"][0]])
+                          [typ(back), 100 * seen(back, "reflectance")[0], 100 * seen(back, "absorptance")[0]])
     # tmm (Byrnes 2016), coherent, normal incidence, with the layers of the README's block:
     # air | MgF2 λ/4 at 1550 nm | Ta2O5 2·λ/4 | fused silica, and silica | gold 4 nm | n 1.38 280 nm | air
     nm, n_air, n_glass = 1550.0, air(1550.0), silica(1550.0)
@@ -165,9 +166,9 @@ def test_readme_coatings_front_and_back():
     n_gold = nk_file_index("Au-Johnson.yml", nm)
     stack = tmm.coh_tmm("s", [n_air, n_mgf2, n_ta2o5, n_glass],
                         [np.inf, nm / (4 * n_mgf2), 2 * nm / (4 * n_ta2o5.real), np.inf], 0.0, nm)
-    assert_allclose([typ(front), front["reflectance"][0]], [db(stack["T"]), stack["R"]], rtol=0, atol=CLOSED_FORM_TOL)
+    assert_allclose([typ(front), seen(front, "reflectance")[0]], [db(stack["T"]), stack["R"]], rtol=0, atol=CLOSED_FORM_TOL)
     stack = tmm.coh_tmm("s", [n_glass, n_gold, 1.38, n_air], [np.inf, 4.0, 280.0, np.inf], 0.0, nm)
-    assert_allclose([typ(back), back["reflectance"][0], back["absorptance"][0]],
+    assert_allclose([typ(back), seen(back, "reflectance")[0], seen(back, "absorptance")[0]],
                     [db(stack["T"]), stack["R"], 1 - stack["R"] - stack["T"]], rtol=0, atol=CLOSED_FORM_TOL)
 
 
@@ -175,11 +176,11 @@ def test_readme_thick_silicon_window_multiple_reflections():
     data = run_json(readme_link(yaml_block("name: silicon window")))
     entry_face, exit_face, bounce = rows(data, "air in → silicon window", "silicon window → air out",
                                          "silicon window multiple reflections")
-    total = sum(typ(entry) for entry in data["segments"])
+    total = sum(typ(entry) for entry in data["rows"])
     assert_readme_numbers(
         "each face reflects 30.6 % (1.59 dB) and the multiple-reflections row is −0.43 dB: 2.74 dB in all "
         "instead of 3.17 dB for a single pass",
-        [100 * entry_face["reflectance"][0], typ(entry_face), typ(bounce), total, typ(entry_face) + typ(exit_face)])
+        [100 * seen(entry_face, "reflectance")[0], typ(entry_face), typ(bounce), total, typ(entry_face) + typ(exit_face)])
     # closed form: Li 1980 n = 3.4757 at 1550 nm in Ciddor air, τ = 1; the incoherent sum
     # T1·T2/(1 − R²) adds 10·log10(1 − R²) (Born & Wolf)
     n_si, n_air = nk_file_index("Si-Li-293K.yml", 1550.0).real, air(1550.0)
@@ -276,7 +277,7 @@ def test_readme_joints_from_geometry():
     assert_readme_numbers(
         "the bulkhead's row is its datasheet 0.25 dB typ, 0.50 dB worst, with the geometric estimate 0.11 dB typ, "
         "0.37 dB worst beside it; the field splice loses 0.01 dB typ, 0.09 dB worst",
-        [typ(bulkhead), worst(bulkhead), typ(bulkhead, "geometric_loss_db"), worst(bulkhead, "geometric_loss_db"),
+        [typ(bulkhead), worst(bulkhead), typ(bulkhead, "geometric_estimate_db"), worst(bulkhead, "geometric_estimate_db"),
          typ(splice), worst(splice)])
     # closed forms: the lead fibre's mode from Marcuse's fit (a = 4.1 µm, NA 0.14, V = 2.327,
     # w = 4.610 µm), Gaussian overlaps with offset, tilt (in Ciddor air) and mode mismatch, worst over
@@ -296,7 +297,7 @@ def test_readme_joints_from_geometry():
     expected = [db(bulkhead_t(10.4, 0.5, 0.0)),
                 max(db(bulkhead_t(m, o, t)) for m in (9.9, 10.9) for o in (0.5, 1.2) for t in (0.0, 0.2)),
                 db(splice_t(9.2, 0.2)), max(db(splice_t(m, o)) for m in (8.8, 9.6) for o in (0.2, 0.6))]
-    assert_allclose([typ(bulkhead, "geometric_loss_db"), worst(bulkhead, "geometric_loss_db"),
+    assert_allclose([typ(bulkhead, "geometric_estimate_db"), worst(bulkhead, "geometric_estimate_db"),
                      typ(splice), worst(splice)], expected, rtol=0, atol=CLOSED_FORM_TOL)
 
 
@@ -334,8 +335,8 @@ def test_readme_indoor_gaps():
         "The bench path loses 0.50 dB typ (0.79 dB worst) outside the aperture; the attenuator gap\n"
         "0.64 dB typ (1.22 dB worst: its tilt turned against the offset, which the gap does not state),\n"
         "plus its two faces (0.16 dB each)",
-        [typ(bench, "beam_loss_db"), worst(bench, "beam_loss_db"), typ(attenuator, "beam_loss_db"),
-         worst(attenuator, "beam_loss_db"), typ(faces[0])])
+        [typ(bench["loss_parts_db"], "beam"), worst(bench["loss_parts_db"], "beam"), typ(attenuator["loss_parts_db"], "beam"),
+         worst(attenuator["loss_parts_db"], "beam"), typ(faces[0])])
     assert_readme_numbers("(0.16 dB each)", [typ(faces[1])])
     # closed forms at 1310 nm in Ciddor air: the 0.25 mm waist spread over 400 / 450 mm, power
     # inside the 1.5 mm lens (Kogelnik & Li; Siegman); the attenuator gap typ: two 10.4 µm modes
@@ -347,7 +348,7 @@ def test_readme_indoor_gaps():
         w = 0.25e-3 * math.sqrt(1 + (length_m / z_r) ** 2)
         return db(1 - math.exp(-2 * 0.75e-3**2 / w**2))
 
-    assert_allclose([typ(bench, "beam_loss_db"), worst(bench, "beam_loss_db"), typ(attenuator, "beam_loss_db"),
+    assert_allclose([typ(bench["loss_parts_db"], "beam"), worst(bench["loss_parts_db"], "beam"), typ(attenuator["loss_parts_db"], "beam"),
                      typ(faces[0]), typ(faces[1])],
                     [waist_loss_db(0.4), waist_loss_db(0.45), db(attenuator_coupling(50, 0.5, 0.0)),
                      face_loss_db(1.468, n_air), face_loss_db(n_air, 1.468)], rtol=0, atol=CLOSED_FORM_TOL)
@@ -372,7 +373,7 @@ def test_readme_indoor_attenuator_gap_worst_takes_the_unfavourable_tilt_directio
                for length in (50, 60) for offset in (0.5, 1.5) for tilt in (0.0, 0.3) for sign in (1, -1)]
     expected = db(min(corners))
     assert expected == pytest.approx(1.2237, abs=1e-4)
-    assert_allclose(worst(attenuator, "beam_loss_db"), expected, rtol=0, atol=CLOSED_FORM_TOL)
+    assert_allclose(worst(attenuator["loss_parts_db"], "beam"), expected, rtol=0, atol=CLOSED_FORM_TOL)
 
 
 def outdoor_chain():
@@ -387,13 +388,13 @@ def test_readme_outdoor_gap_beam_and_haze():
     assert_readme_numbers(
         "The beam loses 12.67 dB typ (16.13 dB worst) outside the aperture and the haze 0.26 dB typ\n"
         "(2.83 dB worst at 3 km; 2.90 dB with `kim`)",
-        [typ(link, "beam_loss_db"), worst(link, "beam_loss_db"), typ(link, "ambient_loss_db"),
-         worst(link, "ambient_loss_db"), 3, worst(kim_link, "ambient_loss_db")])
+        [typ(link["loss_parts_db"], "beam"), worst(link["loss_parts_db"], "beam"), typ(link["loss_parts_db"], "medium"),
+         worst(link["loss_parts_db"], "medium"), 3, worst(kim_link["loss_parts_db"], "medium")])
     # closed forms at 1550 nm, 1.2 km, 80 mm aperture, θ = 0.2 / 0.3 mrad (Kogelnik & Li; Siegman);
     # haze: Kruse at 20 km and 3 km, Kim at 3 km
     lam, n_air = 1550e-9, air(1550.0)
-    assert_allclose([typ(link, "beam_loss_db"), worst(link, "beam_loss_db"), typ(link, "ambient_loss_db"),
-                     worst(link, "ambient_loss_db"), worst(kim_link, "ambient_loss_db")],
+    assert_allclose([typ(link["loss_parts_db"], "beam"), worst(link["loss_parts_db"], "beam"), typ(link["loss_parts_db"], "medium"),
+                     worst(link["loss_parts_db"], "medium"), worst(kim_link["loss_parts_db"], "medium")],
                     [aperture_beam_loss_db(0.2e-3, 1200.0, 80e-3, lam, n_air),
                      aperture_beam_loss_db(0.3e-3, 1200.0, 80e-3, lam, n_air),
                      1.2 * kruse_db_per_km(20.0, 1550.0), 1.2 * kruse_db_per_km(3.0, 1550.0),
@@ -409,8 +410,8 @@ def test_readme_outdoor_gap_measured_extinction():
     assert setting in chain and "visibility" not in chain
     (link,) = rows(run_json(readme_link(chain)), "campus link")
     assert_readme_numbers("the path loses 0.48 dB typ,\n4.8 dB worst to it",
-                          [typ(link, "ambient_loss_db"), worst(link, "ambient_loss_db")])
-    assert_allclose([typ(link, "ambient_loss_db"), worst(link, "ambient_loss_db")], [1.2 * 0.4, 1.2 * 4.0],
+                          [typ(link["loss_parts_db"], "medium"), worst(link["loss_parts_db"], "medium")])
+    assert_allclose([typ(link["loss_parts_db"], "medium"), worst(link["loss_parts_db"], "medium")], [1.2 * 0.4, 1.2 * 4.0],
                     rtol=0, atol=CLOSED_FORM_TOL)
 
 
@@ -489,12 +490,12 @@ def test_readme_gain_note():
 
 
 def test_readme_json_result_strings():
-    readme_says('Its core: `schema` (`"linkbudget.result/1"`)')
-    readme_says('(in the JSON result: `"beam": "not evaluated: no launched beam or receiving\nside"`)')
+    readme_says('Its core: `schema` (`"linkbudget.result/2"`)')
+    readme_says('(in the JSON result, among the row\'s `facts`: `"beam not evaluated: no launched beam or\nreceiving side"`)')
     data = run_json(readme_link(yaml_block("name: tilted window")))
-    assert data["schema"] == "linkbudget.result/1"
+    assert data["schema"] == "linkbudget.result/2"
     (space,) = rows(data, "air space")
-    assert space["beam"] == "not evaluated: no launched beam or receiving side"
+    assert space["facts"] == ["beam not evaluated: no launched beam or receiving side"]
     readme_says("the row holds the ambient extinction alone and says\n`beam not evaluated`")
     assert "air space gap 0.00 0.00 0.16 -3.16 -5.16 beam not evaluated" in collapsed(
         run_text(readme_link(yaml_block("name: tilted window"))))

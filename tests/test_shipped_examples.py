@@ -71,7 +71,7 @@ def shipped(name):
 
 
 def row(data, name):
-    (entry,) = [segment for segment in data["segments"] if segment["name"] == name]
+    (entry,) = [segment for segment in data["rows"] if segment["name"] == name]
     return entry
 
 
@@ -171,8 +171,8 @@ def test_rooftop_optical_bridge_budget():
     assert haze["worst"] == pytest.approx(13.222, abs=1e-3)  # 4.343·(3.91/0.8)·(1550/550)^−0.3·0.85
     data = row(shipped("rooftop-optical-bridge.yaml")[1], "rooftop path")
     for case in ("typ", "worst"):
-        assert_allclose(data["beam_loss_db"][case], [beam[case]], rtol=0, atol=DB_TOL)
-        assert_allclose(data["ambient_loss_db"][case], [haze[case]], rtol=0, atol=DB_TOL)
+        assert_allclose(data["loss_parts_db"]["beam"][case], [beam[case]], rtol=0, atol=DB_TOL)
+        assert_allclose(data["loss_parts_db"]["medium"][case], [haze[case]], rtol=0, atol=DB_TOL)
     loss = {"typ": fixed_typ + beam["typ"] + haze["typ"], "worst": fixed_worst + beam["worst"] + haze["worst"],
             "best": fixed_typ + beam["typ"] + haze["typ"]}
     check_budget("rooftop-optical-bridge.yaml", {"typ": 5.0, "worst": 4.0, "best": 6.0}, loss,

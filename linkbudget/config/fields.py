@@ -27,10 +27,6 @@ from linkbudget.units import parse_quantity
 #: worst-case budget (common practice: ±3σ covers 99.7 % of a normal distribution).
 SIGMA_SPAN = 3.0
 
-#: The budget cases. ``worst`` takes every value at the end that hurts, ``best`` at the other.
-CASES = ("typ", "worst", "best")
-
-
 class InputProblem(ValueError):
     """An input problem placed at a key path (relative to the model or segment raising it).
 
@@ -221,13 +217,6 @@ class SpreadBase(Strict):
     @property
     def is_fixed(self):
         return self.low == self.high
-
-    def at(self, case, *, larger_hurts=True):
-        """The value used in a budget case (one of :data:`CASES`)."""
-        if case == "typ":
-            return self.typ_value
-        hurts = (case == "worst") == larger_hurts
-        return self.high if hurts else self.low
 
 
 #: Internal unit of each dimension, the unit a spread's sigma is shown in.

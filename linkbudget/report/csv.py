@@ -3,8 +3,8 @@
 import csv
 import io
 
-from linkbudget.config.fields import CASES
 from linkbudget.report.summary import wavelength_text
+from linkbudget.segments.cases import CASES
 from linkbudget.text import escaped
 
 #: First characters a spreadsheet reads as a formula (common practice: OWASP "CSV injection").
@@ -32,5 +32,5 @@ def render(result):
     for index in range(result.wavelength_m.size):
         for number, row in enumerate(result.rows):
             values = [f"{q[case][number, index] + 0.0:.6g}" for q in quantities for case in CASES]
-            writer.writerow([labels[index], number + 1, csv_text(row.name), row.kind, *values])
+            writer.writerow([labels[index], number + 1, csv_text(row.name), row.shown_kind, *values])
     return buffer.getvalue()

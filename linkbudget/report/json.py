@@ -1,6 +1,6 @@
 """The JSON result: a versioned, documented contract other tools read.
 
-Schema ``linkbudget.result/1`` (documented in ``docs/json-result.md``). Every per-wavelength
+Schema ``linkbudget.result/2`` (documented in ``docs/json-result.md``). Every per-wavelength
 value is a list over ``wavelengths_nm``; every budget quantity is an object keyed by case
 (``typ``, ``worst``, ``best``). Numbers are rounded to a fixed resolution so that a result
 diffs cleanly (:data:`DB_RESOLUTION_DECIMALS`, :data:`WAVELENGTH_RESOLUTION_DECIMALS`). A null
@@ -12,9 +12,9 @@ import math
 import numpy as np
 
 from linkbudget import __version__
-from linkbudget.config.fields import CASES
+from linkbudget.segments.cases import CASES
 
-SCHEMA = "linkbudget.result/1"
+SCHEMA = "linkbudget.result/2"
 
 #: Decimals of every dB and dBm number written (1e-9 dB).
 DB_RESOLUTION_DECIMALS = 9
@@ -35,31 +35,38 @@ def _by_case(arrays, index=None):
     return {case: _numbers(arrays[case] if index is None else arrays[case][index]) for case in CASES}
 
 
-def _detail(value, decimals=DB_RESOLUTION_DECIMALS):
+def _values(value, decimals=DB_RESOLUTION_DECIMALS):
+    """A row's typed value as JSON: a mapping (by case, part or polarization) of arrays, or ``None``."""
+    if value is None:
+        return None
     if isinstance(value, dict):
-        return {key: _detail(item, decimals) for key, item in value.items()}
-    if isinstance(value, np.ndarray):
-        return _numbers(value, decimals)
-    if isinstance(value, float):
-        return _numbers([value], decimals)[0]
-    return value
+        return {key: _values(item, decimals) for key, item in value.items()}
+    return _numbers(value, decimals)
 
 
-def _decimals_of(key):
-    """dB and dBm values to 1e-9; every other number of a row (a power fraction) to 1e-12."""
-    return DB_RESOLUTION_DECIMALS if key.endswith(("_db", "_dbm")) else FRACTION_RESOLUTION_DECIMALS
+def _present(fields):
+    """The fields a row has (a row without a reflectance, parts or facts leaves them out)."""
+    return {key: value for key, value in fields.items() if value}
 
 
-def segment_dict(result, index):
+def row_dict(result, index):
     """The JSON object of one budget row."""
     row = result.rows[index]
     return {
+        "id": row.id,
         "name": row.name,
         "kind": row.kind,
+        "segment_kind": row.segment_kind,
+        "origin": list(row.origin),
         "loss_db": _by_case(result.loss_db, index),
         "cumulative_loss_db": _by_case(result.cumulative_loss_db, index),
         "power_after_dbm": _by_case(result.power_after_dbm, index),
-        **{key: _detail(value, _decimals_of(key)) for key, value in row.detail.items()},
+        **_present({"loss_parts_db": _values(row.loss_parts_db),
+                    "geometric_estimate_db": _values(row.geometric_estimate_db),
+                    "reflectance": _values(row.reflectance, FRACTION_RESOLUTION_DECIMALS),
+                    "polarization_share": _values(row.polarization_share, FRACTION_RESOLUTION_DECIMALS),
+                    "absorptance": _values(row.absorptance, FRACTION_RESOLUTION_DECIMALS),
+                    "facts": list(row.facts), "notes": list(row.notes)}),
         **({"total_internal_reflection": [bool(value) for value in result.total_internal_reflection[index]]}
            if result.total_internal_reflection[index].any() else {}),
     }
@@ -79,11 +86,11 @@ def result_dict(result):
         "source_dbm": _by_case(result.source_dbm),
         "receiver": {
             "name": result.receiver_name,
-            "sensitivity_dbm": _detail(result.sensitivity_dbm),
-            "overload_dbm": None if result.overload_dbm is None else _detail(result.overload_dbm),
-            "required_margin_db": _detail(result.required_margin_db),
+            "sensitivity_dbm": _numbers([result.sensitivity_dbm])[0],
+            "overload_dbm": None if result.overload_dbm is None else _numbers([result.overload_dbm])[0],
+            "required_margin_db": _numbers([result.required_margin_db])[0],
         },
-        "segments": [segment_dict(result, index) for index in range(len(result.rows))],
+        "rows": [row_dict(result, index) for index in range(len(result.rows))],
         "total_loss_db": _by_case({case: losses[-1] for case, losses in result.cumulative_loss_db.items()}),
         "received_dbm": _by_case(result.received_dbm),
         "margin_db": _by_case(result.margin_db),

@@ -73,7 +73,7 @@ def render(result):
              f"Budget at {nm(result.wavelength_m[index])}:", ""]
     lines += _table(
         ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm", "note"],
-        [[markdown_text(row.name), row.kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
+        [[markdown_text(row.name), row.shown_kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
           _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index]),
           markdown_text(row_note(row, index))]
          for n, row in enumerate(result.rows)], text_columns=2)

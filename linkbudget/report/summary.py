@@ -86,30 +86,22 @@ def _db_cases(losses, index):
 
 def row_note(row, index):
     """A short note on a budget row at wavelength number ``index``: the reflectance of a face,
-    R and A of a coating, the geometric estimate beside a datasheet loss, the parts of a loss."""
-    detail = row.detail
+    R and A of a coating, a connector's return loss, the geometric estimate beside a datasheet
+    loss, the parts of a loss, the row's facts."""
     notes = []
-    if "reflectance" in detail:
-        notes.append(f"R {_percent(detail['reflectance'], index)}")
-    if "absorptance" in detail:
-        notes.append(f"A {_percent(detail['absorptance'], index)}")
-    if "geometric_loss_db" in detail:
-        notes.append(f"geometry: {_db_cases(detail['geometric_loss_db'], index)}")
-    if "beam_loss_db" in detail:
-        notes.append(f"beam {fixed(detail['beam_loss_db']['typ'][index])} dB, "
-                     f"medium {fixed(detail['ambient_loss_db']['typ'][index])} dB (typ)")
-    if "beam" in detail:
-        notes.append("beam not evaluated")
-    if "loss_parts_db" in detail:
-        notes.append(", ".join(f"{part} {fixed(cases['typ'][index])}"
-                               for part, cases in detail["loss_parts_db"].items()
-                               if any(float(cases[case][index]) != 0 for case in cases)))
-    if "return_loss_db" in detail:
-        notes.append(f"return loss {fixed(detail['return_loss_db'], 1)} dB")
-    if detail.get("port") is not None:
-        notes.append(f"port {detail['port']}")
-    if detail.get("note"):
-        notes.append(detail["note"])  # the user's own words: each format escapes the whole note
+    if row.reflectance is not None and row.kind != "segment":
+        notes.append(f"R {_percent(row.reflectance_seen, index)}")
+    if row.absorptance is not None:
+        notes.append(f"A {_percent(row.absorptance_seen, index)}")
+    if row.geometric_estimate_db is not None:
+        notes.append(f"geometry: {_db_cases(row.geometric_estimate_db, index)}")
+    parts = ", ".join(f"{part} {fixed(cases['typ'][index])}" for part, cases in row.loss_parts_db.items()
+                      if any(float(cases[case][index]) != 0 for case in cases))
+    if parts:
+        notes.append(parts)
+    if row.kind == "segment" and row.reflectance is not None:
+        notes.append(f"return loss {fixed(row.return_loss_db[index], 1)} dB")
+    notes.extend(row.facts)  # the user's own words among them: each format escapes the whole note
     return "; ".join(notes)
 
 

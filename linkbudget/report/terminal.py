@@ -59,7 +59,7 @@ def budget_table(result, index):
                   _db(result.source_dbm["worst"][index], True))
     for number, row in enumerate(result.rows):
         table.add_row(
-            str(number + 1), _name_cell(row, index), row.kind,
+            str(number + 1), _name_cell(row, index), row.shown_kind,
             _db(result.loss_db["typ"][number, index]), _db(result.loss_db["worst"][number, index]),
             _db(result.cumulative_loss_db["worst"][number, index]),
             _db(result.power_after_dbm["typ"][number, index], True),

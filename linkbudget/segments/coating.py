@@ -5,7 +5,7 @@ the coherent transfer-matrix method (:func:`linkbudget.physics.thinfilm.coherent
 between the media of its two neighbours.
 """
 
-from typing import ClassVar, Literal
+from typing import Literal
 
 import numpy as np
 from pydantic import PrivateAttr, model_validator
@@ -17,10 +17,11 @@ from linkbudget.config.fields import (
     integer,
     quantity,
 )
-from linkbudget.config.ranges import RANGES
+from linkbudget.config.ranges import RANGES, index_notes
 from linkbudget.physics.thinfilm import quarter_wave_thickness_m
 from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.optics import resolve_index
+from linkbudget.segments.roles import Coats
 from linkbudget.units import WAVELENGTH_EXAMPLE
 
 
@@ -67,8 +68,6 @@ class Coating(SegmentSpec):
     kind: Literal["coating"]
     layers: list[Layer]
     _stack: tuple | None = PrivateAttr(default=None)
-    is_coating: ClassVar[bool] = True
-
     @model_validator(mode="after")
     def _layer_count(self):
         message = RANGES["layer count"].problem(len(self.layers))
@@ -79,15 +78,20 @@ class Coating(SegmentSpec):
     def resolve(self, wavelength_m, files):
         resolved = [layer.resolve(wavelength_m, files, ("layers", number))
                     for number, layer in enumerate(self.layers)]
-        self._stack = (np.array([index for index, _ in resolved]), np.array([t for _, t in resolved]))
-        return self
+        return self._resolved(_stack=(np.array([index for index, _ in resolved]),
+                                      np.array([t for _, t in resolved])))
 
-    @property
-    def layer_index(self):
-        """Layer indices, shape (n_layers, n_wavelengths)."""
-        return self._stack[0]
+    def role(self):
+        """A coating on the face between its neighbours; the engine evaluates it between their media."""
+        return Coats(*self._stack)
 
-    @property
-    def thickness_m(self):
-        """Physical layer thicknesses [m], shape (n_layers,)."""
-        return self._stack[1]
+    def input_notes(self):
+        """Range notes, and a metal's index in a layer (:func:`~linkbudget.config.ranges.index_notes`)."""
+        return super().input_notes() + [f"layers[{number}]: {note}" for number, layer_index in
+                                        enumerate(self._stack[0]) for note in index_notes(layer_index)]
+
+    def placement_problem(self, place):
+        if not (place.medium_before and place.medium_after):
+            return InputProblem(("kind",), "a coating sits directly between two segments that carry a medium",
+                                "give the neighbours an index or material, e.g. a gap (air) before a coated window")
+        return None

@@ -19,7 +19,6 @@ import itertools
 
 import numpy as np
 
-from linkbudget.config.fields import CASES
 from linkbudget.physics import gaussian
 from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.gaussian import coupling_efficiency_tilt_azimuth
@@ -37,18 +36,32 @@ def _ends(spread):
     return (spread.low,) if spread.is_fixed else (spread.low, spread.high)
 
 
-def _typ(spread):
-    return 0.0 if spread is None else spread.typ_value
+def _value(case, spread):
+    """The value of ``spread`` in ``case`` (0 when absent)."""
+    return 0.0 if spread is None else case.value(spread)
 
 
-def _case_losses_db(typical, least, largest=None):
-    """Loss per case from the typical efficiency and the least and largest ones found at the
-    tolerance corners (``largest`` defaults to ``least``; the typical point counts too, so that
-    best ≤ typ ≤ worst in loss even where a value is not monotonic)."""
-    largest = least if largest is None else largest
-    efficiency = {"typ": typical, "worst": np.min([typical, *least], axis=0),
-                  "best": np.max([typical, *largest], axis=0)}
-    return {case: loss_db_from_transmittance(efficiency[case]) for case in CASES}
+def _azimuth_cosine(case, tilt, tilt_direction):
+    """cos ψ of the tilt's azimuth in ``case``: the stated direction, else the case's value of an
+    unknown azimuth (the nominal one across the offset; draws uniform over the circle)."""
+    if tilt_direction is not None:
+        return TILT_DIRECTION_COSINES[tilt_direction]
+    azimuth_rad = case.unknown(tilt, 0.0, 2 * np.pi, nominal=None)
+    return TILT_DIRECTION_COSINES[TYPICAL_TILT_DIRECTION] if azimuth_rad is None else np.cos(azimuth_rad)
+
+
+def _case_losses_db(cases, typical_at, search):
+    """case name -> loss [dB], from the efficiency each case's own point gives (``typical_at(case)``)
+    and, for the cases that search (worst, best), the least and largest efficiency ``search()``
+    finds over the tolerance box (run once, only when a case needs it)."""
+    found, losses = [], {}
+    for case in cases:
+        if case.searches and not found:
+            found.append(search())
+        least, largest = found[0] if case.searches else (None, None)
+        efficiency = case.extreme(typical_at(case), least, largest)
+        losses[case.name] = loss_db_from_transmittance(efficiency)
+    return losses
 
 
 def _per_offset_axis(wavelength_m, before, after, offset_m, tilt_rad, separation_m, n):
@@ -100,7 +113,7 @@ def _stacked(corners, shape):
     return radii, scalars
 
 
-def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, separation=None, n=1.0,
+def coupling_losses_db(wavelength_m, before, after, cases, *, offset=None, tilt=None, separation=None, n=1.0,
                        tilt_direction=None):
     """Coupling loss [dB] per budget case between two modes.
 
@@ -108,7 +121,8 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     known, so the axis where it hurts more is taken; circular modes are unaffected). The tilt
     turns the launched beam at an azimuth from the offset: ``tilt_direction`` fixes it for every
     case; without it the worst case takes the least coupling over every azimuth, the best case
-    the largest, the nominal the tilt across the offset.
+    the largest, the nominal the tilt across the offset, and draws a uniformly random azimuth.
+    Draws evaluate the overlap at their drawn values.
 
     Parameters
     ----------
@@ -116,6 +130,8 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
         Vacuum wavelengths [m].
     before, after : Mode
         The mode launched and the mode received.
+    cases : sequence of Corner or Draws
+        The budget cases (:mod:`linkbudget.segments.cases`).
     offset, tilt, separation : spread or None
         Lateral offset [m] at the receiving mode's waist, tilt [rad] (in the gap medium) and axial
         separation [m].
@@ -127,13 +143,29 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
     Returns
     -------
     dict
-        case -> loss array over the wavelength axis.
+        case name -> loss array over the wavelength axis.
 
     References
     ----------
     .. [1] D. Marcuse, "Loss analysis of single-mode fiber splices", Bell Syst. Tech. J. 56, 703 (1977).
     .. [2] A. Ghatak and K. Thyagarajan, "An Introduction to Fiber Optics", 1998, eqs. 8.69/8.75/8.81.
     """
+    def typical_at(case):
+        cosine = _azimuth_cosine(case, tilt, tilt_direction)
+        at = _per_offset_axis(wavelength_m, (before.x.at(case), before.y.at(case)),
+                              (after.x.at(case), after.y.at(case)),
+                              _value(case, offset), _value(case, tilt), _value(case, separation), n)
+        return np.minimum(*at(cosine))
+
+    def search():
+        return _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction)
+
+    return _case_losses_db(cases, typical_at, search)
+
+
+def _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
+    """(least, largest) coupling efficiency over the corners of the tolerance box and every
+    azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks."""
     shape = np.shape(wavelength_m)
     corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
                                      _ends(offset), _ends(tilt), _ends(separation)))
@@ -147,25 +179,20 @@ def coupling_losses_db(wavelength_m, before, after, *, offset=None, tilt=None, s
         values = np.minimum(*at(cosines))  # (corner, azimuth, wavelength)
         least.append(values.min(axis=(0, 1)))
         largest.append(values.max(axis=(0, 1)))
-    typical_at = _per_offset_axis(wavelength_m, (before.radius_x_m["typ"], before.radius_y_m["typ"]),
-                                  (after.radius_x_m["typ"], after.radius_y_m["typ"]),
-                                  _typ(offset), _typ(tilt), _typ(separation), n)
-    typical = np.minimum(*typical_at(TILT_DIRECTION_COSINES[tilt_direction or TYPICAL_TILT_DIRECTION]))
-    return _case_losses_db(typical, least, largest)
+    return np.min(least, axis=0), np.max(largest, axis=0)
 
 
 def _mode_candidates(mode, other):
-    """(x, y) radii of ``mode`` to search: the ends of its spread, and the ends of ``other``'s
+    """(x, y) radii of ``mode`` to search: the ends of its range, and the ends of ``other``'s
     clipped into its range (where the ranges overlap, equal sizes couple best)."""
-    def clipped(axis, end):
-        own = getattr(mode, axis)
-        return np.clip(getattr(other, axis)[end], own["low"], own["high"])
+    (x_low, x_high), (y_low, y_high) = mode.x.ends(), mode.y.ends()
+    (other_x_low, other_x_high), (other_y_low, other_y_high) = other.x.ends(), other.y.ends()
+    return [(x_low, y_low), (x_high, y_high),
+            (np.clip(other_x_low, x_low, x_high), np.clip(other_y_low, y_low, y_high)),
+            (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
 
-    ends = [(mode.radius_x_m[end], mode.radius_y_m[end]) for end in ("low", "high")]
-    return ends + [(clipped("radius_x_m", end), clipped("radius_y_m", end)) for end in ("low", "high")]
 
-
-def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n=1.0):
+def aperture_losses_db(wavelength_m, launched, cases, *, distance, aperture_diameter, n=1.0):
     """Loss per case of the power falling outside a circular aperture after a free-space path.
 
     The launched beam has its waist (``launched`` mode radii) at the start; after ``distance`` its
@@ -173,7 +200,8 @@ def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n
     radius a passes T = 1 − exp(−2a²/w²) (:func:`linkbudget.physics.gaussian.aperture_transmission`).
     An elliptical beam is taken at its larger radius (conservative for the margin). Worst and best
     cases search the corners of the waist, distance and aperture spreads, and the waist
-    w0* = √(λz/(π·n)) that spreads least over the distance z, clipped into the waist's range.
+    w0* = √(λz/(π·n)) that spreads least over the distance z, clipped into the waist's range;
+    draws evaluate their own values.
 
     References
     ----------
@@ -184,12 +212,20 @@ def aperture_losses_db(wavelength_m, launched, *, distance, aperture_diameter, n
         spot_m = gaussian.spot_radius_m(waist_m, distance_m, wavelength_m, n=n)
         return gaussian.aperture_transmission(diameter_m / 2, spot_m)
 
-    waist = {end: np.maximum(launched.radius_x_m[end], launched.radius_y_m[end]) for end in ("low", "typ", "high")}
+    def typical_at(case):
+        waist_m = np.maximum(launched.x.at(case), launched.y.at(case))
+        return transmittance(waist_m, case.value(distance), case.value(aperture_diameter))
 
-    def waist_candidates(distance_m):
-        least_spread = np.sqrt(wavelength_m * distance_m / (np.pi * n))  # minimises w(z) (Siegman)
-        return (waist["low"], waist["high"], np.clip(least_spread, waist["low"], waist["high"]))
+    def search():
+        (x_low, x_high), (y_low, y_high) = launched.x.ends(), launched.y.ends()
+        waist_low, waist_high = np.maximum(x_low, y_low), np.maximum(x_high, y_high)
 
-    corners = [transmittance(w, z, a) for z, a in itertools.product(_ends(distance), _ends(aperture_diameter))
-               for w in waist_candidates(z)]
-    return _case_losses_db(transmittance(waist["typ"], _typ(distance), _typ(aperture_diameter)), corners)
+        def waist_candidates(distance_m):
+            least_spread = np.sqrt(wavelength_m * distance_m / (np.pi * n))  # minimises w(z) (Siegman)
+            return (waist_low, waist_high, np.clip(least_spread, waist_low, waist_high))
+
+        corners = [transmittance(w, z, a) for z, a in itertools.product(_ends(distance), _ends(aperture_diameter))
+                   for w in waist_candidates(z)]
+        return np.min(corners, axis=0), np.max(corners, axis=0)
+
+    return _case_losses_db(cases, typical_at, search)

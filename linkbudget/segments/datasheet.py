@@ -7,26 +7,26 @@ shown beside it. ``element`` is a fixed loss or gain. A datasheet loss is the sa
 wavelength; its spread (``{min, typ, max}`` or ``{mean, sigma}``) sets the budget cases.
 """
 
-from typing import ClassVar, Literal
+from typing import Literal
 
 import numpy as np
 from pydantic import PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
-    CASES,
     DielectricIndex,
     InputProblem,
     integer,
     quantity,
 )
 from linkbudget.config.ranges import RANGES
+from linkbudget.physics.decibel import transmittance_from_loss_db
 from linkbudget.segments.base import (
+    NOTHING_AROUND,
     ElementLossSpread,
     JointLossSpread,
     Mode,
     ModeFieldDiameterSpread,
     OffsetSpread,
-    Row,
     SegmentSpec,
     TiltDirection,
     TiltSpread,
@@ -37,6 +37,8 @@ from linkbudget.segments.base import (
 )
 from linkbudget.segments.coupling import coupling_losses_db
 from linkbudget.segments.optics import resolve_index
+from linkbudget.segments.roles import PASSES, Faces, Joint
+from linkbudget.segments.rows import POLARIZATIONS, segment_row
 
 JointType = Literal["physical-contact", "index-matched", "air-gap"]
 
@@ -55,9 +57,6 @@ class _Joint(SegmentSpec):
     the gap, and ``tilt`` is measured in it (Ghatak & Thyagarajan's convention), air included
     when the joint has no gap.
     """
-
-    passes_faces: ClassVar[bool] = True
-    sets_joint: ClassVar[bool] = True
 
     loss: JointLossSpread | None = None
     joint: JointType | None = None
@@ -99,36 +98,67 @@ class _Joint(SegmentSpec):
                           for side in ("before", "after")}, wavelength_m)
         if self.joint_type == "air-gap" or self.geometric:
             material = None if self.gap_index is not None else (self.gap_material or "air")
-            self._gap_index = resolve_index(self.gap_index, material, wavelength_m, files, ("gap_material",))
-        elif self.gap_material is not None or self.gap_index is not None:
+            return self._resolved(_gap_index=resolve_index(self.gap_index, material, wavelength_m, files,
+                                                           ("gap_material",)))
+        if self.gap_material is not None or self.gap_index is not None:
             raise InputProblem(("gap_material" if self.gap_material else "gap_index",),
                                "a gap medium needs a gap, a tilt or an air-gap joint to act on")
         return self
 
-    def gap_medium_index(self):
-        """Index of the medium in the gap over the wavelength axis, else ``None``."""
-        return self._gap_index
+    def role(self):
+        """A joint, with the faces its ``joint`` type makes between the media around it."""
+        faces = _JOINT_FACES[self.joint_type]
+        if faces is not Faces.GAP:
+            return Joint(faces)
+        return Joint(faces, self._gap_index, 0.0 if self.gap is None else self.gap.low)
+
+    def placement_problem(self, place):
+        if not self.geometric:
+            return None
+        for side, mode in zip(("before", "after"), self.side_modes(place.wavelength_m, place.mode_before,
+                                                                    place.mode_after), strict=True):
+            if mode is None:
+                return InputProblem((f"mode_field_diameter_{side}",),
+                                    f"the joint's geometry needs the mode field diameter {side} it",
+                                    f"give mode_field_diameter_{side}, or a neighbouring fiber or waveguide "
+                                    "with mode_field_diameter (or core geometry)")
+        return None
 
     def side_modes(self, wavelength_m, mode_before, mode_after):
         """(mode before, mode after): the explicit diameters, else the neighbours' modes."""
         def side(diameter, neighbour_mode):
-            return neighbour_mode if diameter is None else Mode.from_spread(diameter, diameter, wavelength_m)
+            return neighbour_mode if diameter is None else Mode.from_diameters(diameter, diameter, wavelength_m)
 
         return side(self.mode_field_diameter_before, mode_before), side(self.mode_field_diameter_after, mode_after)
 
-    def geometric_losses_db(self, wavelength_m, mode_before, mode_after):
+    def geometric_losses_db(self, wavelength_m, cases, around):
         """Coupling loss per case from the joint's geometry (Gaussian overlap of the two modes)."""
-        mode_before, mode_after = self.side_modes(wavelength_m, mode_before, mode_after)
-        n_gap = np.real(self._gap_index)
-        return coupling_losses_db(wavelength_m, mode_before, mode_after, offset=self.offset, tilt=self.tilt,
-                                  separation=self.gap, n=n_gap, tilt_direction=self.tilt_direction)
+        mode_before, mode_after = self.side_modes(wavelength_m, around.mode_before, around.mode_after)
+        return coupling_losses_db(wavelength_m, mode_before, mode_after, cases, offset=self.offset, tilt=self.tilt,
+                                  separation=self.gap, n=np.real(self._gap_index),
+                                  tilt_direction=self.tilt_direction)
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
-        geometric = self.geometric_losses_db(wavelength_m, mode_before, mode_after) if self.geometric else None
+    def budget_row(self, wavelength_m, cases, around):
+        """The datasheet loss (with the geometric estimate beside it, when the geometry is given
+        too), else the loss from the geometry."""
+        geometric = self.geometric_losses_db(wavelength_m, cases, around) if self.geometric else None
+        typed = {"reflectance": self.reflectance(wavelength_m)}
         if self.loss is None:
-            return Row(self.name, self.kind, geometric)
-        datasheet = {case: self.loss_db(wavelength_m, case) for case in CASES}
-        return Row(self.name, self.kind, datasheet, {} if geometric is None else {"geometric_loss_db": geometric})
+            return segment_row(self, geometric, **typed)
+        datasheet = {case.name: self.loss_db(wavelength_m, case) for case in cases}
+        return segment_row(self, datasheet, geometric_estimate_db=geometric, **typed)
+
+    def reflectance(self, wavelength_m):
+        """polarization -> the power fraction the joint sends back toward the source, or ``None``."""
+        return None
+
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        """The datasheet loss over the wavelength axis."""
+        return flat_over_wavelength(case.value(self.loss), wavelength_m)
+
+
+#: The faces each ``joint`` type makes between the media around it.
+_JOINT_FACES = {"physical-contact": Faces.CONTACT, "index-matched": Faces.NONE, "air-gap": Faces.GAP}
 
 
 class Connector(_Joint):
@@ -137,14 +167,13 @@ class Connector(_Joint):
     kind: Literal["connector"]
     return_loss: quantity("ratio", bounds=RANGES["return loss"]) | None = None
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None):
-        row = super().budget_row(wavelength_m, mode_before=mode_before, mode_after=mode_after)
-        if self.return_loss is not None:
-            row.detail["return_loss_db"] = self.return_loss
-        return row
-
-    def loss_db(self, wavelength_m, case):
-        return flat_over_wavelength(self.loss.at(case), wavelength_m)
+    def reflectance(self, wavelength_m):
+        """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
+        (a datasheet states one value)."""
+        if self.return_loss is None:
+            return None
+        reflected = flat_over_wavelength(transmittance_from_loss_db(self.return_loss), wavelength_m)
+        return {pol: reflected for pol in POLARIZATIONS}
 
 
 class Splice(_Joint):
@@ -153,25 +182,26 @@ class Splice(_Joint):
     kind: Literal["splice"]
     count: integer(bounds=RANGES["splice count"]) = 1
 
-    def loss_db(self, wavelength_m, case):
-        return flat_over_wavelength(self.count * self.loss.at(case), wavelength_m)
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        return self.count * super().loss_db(wavelength_m, case)
 
-    def geometric_losses_db(self, wavelength_m, mode_before, mode_after):
+    def geometric_losses_db(self, wavelength_m, cases, around):
         return {case: self.count * loss for case, loss in super().geometric_losses_db(
-            wavelength_m, mode_before, mode_after).items()}
+            wavelength_m, cases, around).items()}
 
 
 class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
 
-    passes_faces: ClassVar[bool] = True
-
     kind: Literal["element"]
     loss: ElementLossSpread
     note: str | None = None
 
-    def loss_db(self, wavelength_m, case):
-        return flat_over_wavelength(self.loss.at(case), wavelength_m)
+    def role(self):
+        return PASSES
 
-    def row_detail(self, wavelength_m):
-        return {} if self.note is None else {"note": self.note}
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        return flat_over_wavelength(case.value(self.loss), wavelength_m)
+
+    def row_facts(self):
+        return () if self.note is None else (self.note,)

@@ -17,13 +17,13 @@ from typing import Literal
 import numpy as np
 from pydantic import model_validator
 
-from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, Strict
+from linkbudget.config.fields import DielectricIndex, InputProblem, Strict
 from linkbudget.config.ranges import RANGES, mode_size_problem
 from linkbudget.physics import atmosphere, gaussian
 from linkbudget.segments.base import (
     Mode,
+    ModeAxis,
     OffsetSpread,
-    Row,
     TiltDirection,
     TiltSpread,
     check_tilt_direction,
@@ -32,6 +32,7 @@ from linkbudget.segments.base import (
 )
 from linkbudget.segments.coupling import aperture_losses_db, coupling_losses_db
 from linkbudget.segments.medium import Bulk, absorption_coefficient_per_m
+from linkbudget.segments.rows import segment_row
 
 #: Visibility models, by name (each a published model of :mod:`linkbudget.physics.atmosphere`).
 VISIBILITY_MODELS = {
@@ -54,13 +55,13 @@ class Beam(Strict):
         return self
 
     def mode(self, wavelength_m, n):
-        """The launched beam as a circular :class:`Mode` (waist radii at the spread ends)."""
+        """The launched beam as a circular :class:`Mode`: its waist radius, or the waist
+        λ/(π·n·θ) of its divergence θ (:func:`linkbudget.physics.gaussian.waist_from_divergence_m`)."""
         if self.waist is not None:
-            values = {"low": self.waist.low, "typ": self.waist.typ_value, "high": self.waist.high}
-            return Mode.circular({end: np.full(np.shape(wavelength_m), value) for end, value in values.items()})
-        angle = {"low": self.divergence.high, "typ": self.divergence.typ_value, "high": self.divergence.low}
-        return Mode.circular({end: gaussian.waist_from_divergence_m(value, wavelength_m, n=n)
-                              for end, value in angle.items()})
+            ones = np.ones(np.shape(wavelength_m))
+            return Mode.circular(ModeAxis(self.waist, lambda radius_m: radius_m * ones))
+        return Mode.circular(ModeAxis(self.divergence,
+                                      lambda angle_rad: gaussian.waist_from_divergence_m(angle_rad, wavelength_m, n=n)))
 
 
 class Gap(Bulk):
@@ -104,14 +105,14 @@ class Gap(Bulk):
         return super().resolve(wavelength_m, files)
 
     def path_length_m(self, case):
-        return self.length.at(case)
+        return case.value(self.length)
 
     def absorption_per_m(self, wavelength_m, case):
         """α [1/m] of the ambient medium, or the visibility model's extinction if given."""
         if self.visibility is None:
             return super().absorption_per_m(wavelength_m, case)
         model = VISIBILITY_MODELS[self.visibility_model]
-        visibility_m = self.visibility.at(case, larger_hurts=False)
+        visibility_m = case.value(self.visibility, larger_hurts=False)
         return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=model(visibility_m, wavelength_m) / 1e3)
 
     def launched_mode(self, wavelength_m, mode_before):
@@ -120,24 +121,37 @@ class Gap(Bulk):
             return self.beam.mode(wavelength_m, np.real(self.medium_index()))
         return mode_before
 
-    def beam_losses_db(self, wavelength_m, mode_before, mode_after):
+    def beam_losses_db(self, wavelength_m, cases, around):
         """Beam coupling loss per case, or ``None`` when an end of the beam is not known."""
-        launched = self.launched_mode(wavelength_m, mode_before)
+        launched = self.launched_mode(wavelength_m, around.mode_before)
         n = np.real(self.medium_index())
         if launched is None:
             return None
         if self.aperture is not None:
-            return aperture_losses_db(wavelength_m, launched, distance=self.length,
+            return aperture_losses_db(wavelength_m, launched, cases, distance=self.length,
                                       aperture_diameter=self.aperture, n=n)
-        if mode_after is None:
+        if around.mode_after is None:
             return None
-        return coupling_losses_db(wavelength_m, launched, mode_after, offset=self.offset, tilt=self.tilt,
-                                  separation=self.length, n=n, tilt_direction=self.tilt_direction)
+        return coupling_losses_db(wavelength_m, launched, around.mode_after, cases, offset=self.offset,
+                                  tilt=self.tilt, separation=self.length, n=n, tilt_direction=self.tilt_direction)
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, tangential_index=0.0):
-        ambient = {case: self.loss_db(wavelength_m, case, tangential_index=tangential_index) for case in CASES}
-        beam = self.beam_losses_db(wavelength_m, mode_before, mode_after)
+    def budget_row(self, wavelength_m, cases, around):
+        """The medium's loss over the path, plus the beam's coupling loss when both ends are known
+        (the two are the row's parts ``medium`` and ``beam``)."""
+        ambient = {case.name: self.loss_db(wavelength_m, case, around) for case in cases}
+        beam = self.beam_losses_db(wavelength_m, cases, around)
         if beam is None:
-            return Row(self.name, self.kind, ambient, {"beam": "not evaluated: no launched beam or receiving side"})
-        total = {case: ambient[case] + beam[case] for case in CASES}
-        return Row(self.name, self.kind, total, {"ambient_loss_db": ambient, "beam_loss_db": beam})
+            return segment_row(self, ambient, facts=("beam not evaluated: no launched beam or receiving side",))
+        total = {case.name: ambient[case.name] + beam[case.name] for case in cases}
+        return segment_row(self, total, loss_parts_db={"medium": ambient, "beam": beam})
+
+    def placement_problem(self, place):
+        receives = self.aperture is not None or place.mode_after is not None
+        if self.beam is not None and not receives:
+            return InputProblem(("beam",), "a launched beam needs a receiving side",
+                                "give the gap an aperture, or follow it with a fiber or waveguide that has a mode")
+        if (self.offset is not None or self.tilt is not None) and not (
+                receives and self.launched_mode(place.wavelength_m, place.mode_before) is not None):
+            return InputProblem(("offset" if self.offset is not None else "tilt",),
+                                "offset and tilt need a beam launched into the gap and a mode receiving it")
+        return super().placement_problem(place)

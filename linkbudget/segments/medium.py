@@ -6,7 +6,7 @@ one of them into the intensity attenuation coefficient α, and
 converts a medium's loss.
 """
 
-from typing import ClassVar, Literal
+from typing import Literal
 
 import numpy as np
 from pydantic import model_validator
@@ -15,16 +15,18 @@ from linkbudget.config.fields import ComplexIndex, InputProblem, number, quantit
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics import fiber, flux
 from linkbudget.segments.base import (
-    SPREAD_ENDS,
+    NOTHING_AROUND,
     AbsorptionSpread,
     BulkAttenuationSpread,
     KappaSpread,
     Mode,
+    ModeAxis,
     ModeFieldDiameterSpread,
     attenuation_spread,
     check_mode_sizes,
     length_spread,
 )
+from linkbudget.segments.cases import TYPICAL
 from linkbudget.segments.optics import OpticalSegment
 
 
@@ -91,27 +93,27 @@ class Fiber(OpticalSegment):
                                f"got {self.numerical_aperture:g}")
         return self
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter}, wavelength_m)
-        return super().resolve(wavelength_m, base_dir)
+        return super().resolve(wavelength_m, files)
 
     def mode(self, wavelength_m):
         """The fundamental mode: the datasheet mode field diameter (the same at every wavelength),
         or Marcuse's Gaussian fit from the core geometry at each wavelength
         (:func:`linkbudget.physics.fiber.marcuse_mode_field_radius_m`)."""
         if self.mode_field_diameter is not None:
-            return Mode.from_spread(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
+            return Mode.from_diameters(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
         if self.core_diameter is None:
             return None
         core_radius_m = self.core_diameter / 2
         v = fiber.v_number(core_radius_m, wavelength_m, numerical_aperture=self.numerical_aperture)
         radius_m = fiber.marcuse_mode_field_radius_m(core_radius_m, v)
-        return Mode.circular({end: radius_m for end in SPREAD_ENDS})
+        return Mode.circular(ModeAxis.fixed(radius_m))
 
-    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
-        """The guided path is not lengthened by a tilt (``tangential_index`` is ignored)."""
-        alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
-        return flux.loss_db(alpha, self.length.at(case))
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        """The guided path is not lengthened by a tilt (the tangential index is ignored)."""
+        alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=case.value(self.attenuation))
+        return flux.loss_db(alpha, case.value(self.length))
 
 
 _BULK_FORMS = ("kappa", "absorption", "attenuation")
@@ -137,11 +139,11 @@ class Bulk(OpticalSegment):
     def absorption_per_m(self, wavelength_m, case):
         """α [1/m] over the wavelength axis for a budget case: the explicit form, else the medium's κ."""
         if self.kappa is not None:
-            return absorption_coefficient_per_m(wavelength_m, kappa=self.kappa.at(case))
+            return absorption_coefficient_per_m(wavelength_m, kappa=case.value(self.kappa))
         if self.absorption is not None:
-            return absorption_coefficient_per_m(wavelength_m, absorption_per_m=self.absorption.at(case))
+            return absorption_coefficient_per_m(wavelength_m, absorption_per_m=case.value(self.absorption))
         if self.attenuation is not None:
-            return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
+            return absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=case.value(self.attenuation))
         return absorption_coefficient_per_m(wavelength_m, kappa=self.medium_index().imag)
 
     def resolve(self, wavelength_m, files):
@@ -153,23 +155,23 @@ class Bulk(OpticalSegment):
         bulk row keeps each budget case's own value.
         """
         resolved = super().resolve(wavelength_m, files)
-        if self._check_bulk_forms() and resolved._index is not None:
-            kappa = flux.kappa_from_absorption_coefficient(self.absorption_per_m(wavelength_m, "typ"), wavelength_m)
-            resolved._index = resolved._index.real + 1j * kappa
-        return resolved
+        if not (self._check_bulk_forms() and resolved._index is not None):
+            return resolved
+        kappa = flux.kappa_from_absorption_coefficient(self.absorption_per_m(wavelength_m, TYPICAL), wavelength_m)
+        return resolved._resolved(_index=resolved._index.real + 1j * kappa)
 
     def path_length_m(self, case):
         raise NotImplementedError
 
-    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
         """Bulk loss [dB] of one pass: α·d at normal incidence; crossed at an angle, the flux decays
         along the normal by α_z (:func:`linkbudget.physics.flux.absorption_along_normal_per_m`) with
         this case's index N = Re(N) + iκ, κ = αλ/(4π) (one complex index per medium)."""
         alpha = self.absorption_per_m(wavelength_m, case)
         index = self.medium_index()
-        if index is not None and np.any(tangential_index):
+        if index is not None and np.any(around.tangential_index):
             kappa = flux.kappa_from_absorption_coefficient(alpha, wavelength_m)
-            alpha = flux.absorption_along_normal_per_m(index.real + 1j * kappa, tangential_index, wavelength_m)
+            alpha = flux.absorption_along_normal_per_m(index.real + 1j * kappa, around.tangential_index, wavelength_m)
         return flux.loss_db(alpha, self.path_length_m(case))
 
 
@@ -181,8 +183,6 @@ class Medium(Bulk):
     which then replaces the material's κ. With ``multiple_reflections: true`` the light bouncing
     between its two faces is summed incoherently.
     """
-
-    parallel_faces: ClassVar[bool] = True
 
     kind: Literal["medium"]
     index: ComplexIndex | None = None
@@ -200,10 +200,19 @@ class Medium(Bulk):
         return self
 
     def resolve(self, wavelength_m, files):
-        super().resolve(wavelength_m, files)
-        if self.multiple_reflections and self.medium_index() is None:
+        resolved = super().resolve(wavelength_m, files)
+        if self.multiple_reflections and resolved.medium_index() is None:
             raise InputProblem(("multiple_reflections",), "multiple reflections need faces: give index or material")
-        return self
+        return resolved
+
+    @property
+    def _path(self):
+        return self.thickness if self.thickness is not None else self.length
 
     def path_length_m(self, case):
-        return (self.thickness if self.thickness is not None else self.length).at(case)
+        return case.value(self._path)
+
+    def faces_facts(self):
+        """A plate: parallel faces, its bounces summed if asked, and its thinnest path."""
+        return {"parallel_faces": True, "multiple_reflections": self.multiple_reflections,
+                "thinnest_m": self._path.low}

@@ -10,14 +10,16 @@ from typing import Literal
 import numpy as np
 from pydantic import PrivateAttr, model_validator
 
-from linkbudget.config.fields import CASES, DielectricIndex, InputProblem, quantity
-from linkbudget.config.ranges import RANGES
+from linkbudget.config.fields import DielectricIndex, InputProblem, quantity
+from linkbudget.config.ranges import RANGES, index_notes
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, covering_hint, load_material
 from linkbudget.paths import PathRefused
-from linkbudget.segments.base import Row, SegmentSpec
+from linkbudget.segments.base import SegmentSpec
+from linkbudget.segments.roles import GUIDES, Carries
 
 Polarization = Literal["s", "p", "unpolarized"]
+
 
 def resolve_index(index, material, wavelength_m, files, key_path=()):
     """The complex index over the wavelength axis from an ``index`` or a ``material`` key.
@@ -63,19 +65,31 @@ class OpticalSegment(SegmentSpec):
         return self
 
     def resolve(self, wavelength_m, files):
-        if self.index is not None or self.material is not None:
-            self._index = resolve_index(self.index, self.material, wavelength_m, files)
-        return self
+        if self.index is None and self.material is None:
+            return self
+        return self._resolved(_index=resolve_index(self.index, self.material, wavelength_m, files))
 
     def medium_index(self):
         """Complex index over the wavelength axis, or ``None`` if the segment carries no medium."""
         return self._index
 
-    def budget_row(self, wavelength_m, *, mode_before=None, mode_after=None, tangential_index=0.0):
-        """The bulk row; ``tangential_index`` β = n0·sin θ0 of the light crossing it (0: normal)."""
-        losses = {case: self.loss_db(wavelength_m, case, tangential_index=tangential_index) for case in CASES}
-        return Row(self.name, self.kind, losses, self.row_detail(wavelength_m))
+    def role(self):
+        """It carries its medium, else (a fibre or waveguide without faces) it guides the light."""
+        if self._index is None:
+            return GUIDES
+        return Carries(self._index, self.angle, self.polarization, **self.faces_facts())
 
-    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
-        """Bulk loss [dB] over the wavelength axis, for light of tangential index β (0: normal)."""
-        raise NotImplementedError
+    def faces_facts(self):
+        """What :class:`~linkbudget.segments.roles.Carries` says of its faces beyond the index:
+        by default not parallel (the light is guided, or spreads, along the segment)."""
+        return {}
+
+    def input_notes(self):
+        """Range notes, and a metal's index on its faces (:func:`~linkbudget.config.ranges.index_notes`)."""
+        return super().input_notes() + ([] if self._index is None else index_notes(self._index))
+
+    def placement_problem(self, place):
+        if self.angle is not None and not place.medium_upstream:
+            return InputProblem(("angle",),
+                                "an angle of incidence needs a medium before this segment to be measured in")
+        return None

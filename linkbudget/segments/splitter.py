@@ -18,7 +18,7 @@ from pydantic import BeforeValidator, Field, model_validator
 from linkbudget.config.fields import InputProblem, integer
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
-from linkbudget.segments.base import ExcessLossSpread, SegmentSpec, flat_over_wavelength
+from linkbudget.segments.base import NOTHING_AROUND, ExcessLossSpread, SegmentSpec, flat_over_wavelength
 
 _NUMBER = r"[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?"
 _RATIO = re.compile(rf"^\s*(?P<a>{_NUMBER})\s*(/\s*(?P<b>{_NUMBER})\s*)?$")
@@ -100,8 +100,8 @@ class Splitter(SegmentSpec):
             return 1
         return self.port
 
-    def row_detail(self, wavelength_m):
-        return {**super().row_detail(wavelength_m), "port": self.followed_port}
+    def row_facts(self):
+        return () if self.followed_port is None else (f"port {self.followed_port}",)
 
     def loss_parts_db(self, wavelength_m, case):
         """The parts of the loss [dB] over the wavelength axis for a budget case.
@@ -118,7 +118,7 @@ class Splitter(SegmentSpec):
         else:
             split_db = tap_loss_db(self.ratio)
         return {"split": flat_over_wavelength(split_db, wavelength_m),
-                "excess": flat_over_wavelength(self.excess_loss.at(case), wavelength_m)}
+                "excess": flat_over_wavelength(case.value(self.excess_loss), wavelength_m)}
 
-    def loss_db(self, wavelength_m, case):
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
         return sum(self.loss_parts_db(wavelength_m, case).values())

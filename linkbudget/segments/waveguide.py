@@ -23,6 +23,7 @@ from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, inte
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics import flux
 from linkbudget.segments.base import (
+    NOTHING_AROUND,
     JointLossSpread,
     Mode,
     ModeFieldDiameterSpread,
@@ -43,7 +44,7 @@ class CountedLoss(Strict):
 
     def loss_db(self, case):
         """Total loss of the features [dB] for a budget case."""
-        return self.count * self.loss.at(case)
+        return self.count * case.value(self.loss)
 
 
 class ModeSize(Strict):
@@ -92,8 +93,8 @@ class Waveguide(OpticalSegment):
         ----------
         wavelength_m : numpy.ndarray
             Vacuum wavelengths [m].
-        case : str
-            One of :data:`linkbudget.config.fields.CASES`.
+        case : Corner or Draws
+            What every spread's value is (:mod:`linkbudget.segments.cases`).
 
         Returns
         -------
@@ -114,28 +115,28 @@ class Waveguide(OpticalSegment):
         if self.effective_index is not None:
             alpha = absorption_coefficient_per_m(wavelength_m, kappa=self.effective_index.imag)
         else:
-            alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=self.attenuation.at(case))
+            alpha = absorption_coefficient_per_m(wavelength_m, attenuation_db_per_m=case.value(self.attenuation))
         counted = {"bends": self.bends, "crossings": self.crossings}
         return {
-            "propagation": flux.loss_db(alpha, self.length.at(case)),
+            "propagation": flux.loss_db(alpha, case.value(self.length)),
             **{part: flat_over_wavelength(0.0 if features is None else features.loss_db(case), wavelength_m)
                for part, features in counted.items()},
         }
 
-    def loss_db(self, wavelength_m, case, *, tangential_index=0.0):
-        """Sum of :meth:`loss_parts_db`; ``tangential_index`` is ignored (the mode follows the guide)."""
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        """Sum of :meth:`loss_parts_db`; the tangential index is ignored (the mode follows the guide)."""
         return sum(self.loss_parts_db(wavelength_m, case).values())
 
-    def resolve(self, wavelength_m, base_dir):
+    def resolve(self, wavelength_m, files):
         size = self.mode_size
         check_mode_sizes({("mode_field_diameter",): self.mode_field_diameter,
                           ("mode_size", "width"): None if size is None else size.width,
                           ("mode_size", "height"): None if size is None else size.height}, wavelength_m)
-        return super().resolve(wavelength_m, base_dir)
+        return super().resolve(wavelength_m, files)
 
     def mode(self, wavelength_m):
         if self.mode_field_diameter is not None:
-            return Mode.from_spread(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
+            return Mode.from_diameters(self.mode_field_diameter, self.mode_field_diameter, wavelength_m)
         if self.mode_size is not None:
-            return Mode.from_spread(self.mode_size.width, self.mode_size.height, wavelength_m)
+            return Mode.from_diameters(self.mode_size.width, self.mode_size.height, wavelength_m)
         return None

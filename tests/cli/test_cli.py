@@ -68,8 +68,8 @@ def test_run_example_json_contract(config, cli):
     wavelengths = data["wavelengths_nm"]
     assert isinstance(wavelengths, list) and len(wavelengths) == expected.wavelength_m.size
     assert_allclose(wavelengths, expected.wavelength_m * 1e9, rtol=0, atol=5e-7)  # 1e-6 nm resolution
-    assert data["segments"]
-    for segment in data["segments"]:
+    assert data["rows"]
+    for segment in data["rows"]:
         assert isinstance(segment["name"], str) and isinstance(segment["kind"], str)
         for case in ("typ", "worst"):
             assert isinstance(segment["loss_db"][case], list)

@@ -60,7 +60,7 @@ LONGEST_TEXT = 10_000
 #: ``null`` is documented for these keys of the JSON result (docs/json-result.md); ``*`` is any
 #: list index.
 NULLABLE = {("receiver", "overload_dbm"), ("receiver", "name"), ("source", "name"), ("description",),
-            ("segments", "*", "port")}
+            ("rows", "*", "segment_kind")}
 
 #: The formats a loaded mutant is also run in, one per mutant in turn.
 OTHER_FORMATS = ("terminal", "markdown", "csv")
@@ -119,7 +119,7 @@ def _verdict_failure(stdout, exit_code):
     if data.get("closes") is not (exit_code == 0):
         return Failure("verdict-mismatch", f"exit {exit_code} with closes={data.get('closes')!r}")
     problems = _json_problems(data)
-    if any("total_internal_reflection" in segment for segment in data.get("segments", ())):
+    if any("total_internal_reflection" in segment for segment in data.get("rows", ())):
         # the one documented budget null: light blocked past a critical angle, and never a pass
         problems = [problem for problem in problems if problem[2] != "null" or data["closes"] is False]
     if problems:

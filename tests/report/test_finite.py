@@ -78,10 +78,10 @@ def test_total_internal_reflection_blocks_and_is_marked_in_json(write_link, cli)
     result = cli("run", path, "--format", "json")
     assert result.exit_code == 1
     data = json.loads(result.stdout)
-    face = data["segments"][1]
+    face = data["rows"][1]
     assert face["name"] == "lead → slab" and face["total_internal_reflection"] == [True]
     assert face["loss_db"]["worst"] == [None] and data["margin_db"]["worst"] == [None]
-    assert [s["name"] for s in data["segments"] if "total_internal_reflection" in s] == ["lead → slab"]
+    assert [s["name"] for s in data["rows"] if "total_internal_reflection" in s] == ["lead → slab"]
     assert data["closes"] is False
 
 

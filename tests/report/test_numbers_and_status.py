@@ -36,7 +36,7 @@ def test_status_column_shows_overload(write_link, cli):
 def test_json_numbers_at_documented_resolution(write_link, cli):
     data = json.loads(cli("run", write_link(LINK), "-f", "json").stdout)
     assert data["wavelengths_nm"] == [1550.116, 1550.0001, 1550.0002]
-    assert data["segments"][0]["loss_db"]["typ"] == [0.1, 0.1, 0.1]
+    assert data["rows"][0]["loss_db"]["typ"] == [0.1, 0.1, 0.1]
     assert data["received_dbm"]["typ"] == [-0.1, -0.1, -0.1]
 
 

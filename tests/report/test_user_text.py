@@ -94,11 +94,11 @@ def test_json_keeps_user_text_as_written(write_link, cli):
     assert data["description"] == "Spare ring | <script>x</script> `code`"
     assert data["source"]["name"] == "tx \x1b[2J laser"
     assert data["receiver"]["name"] == "rx *one*"
-    assert data["segments"][1]["note"] == "per drawing 7\rPASS"
+    assert data["rows"][1]["facts"] == ["per drawing 7\rPASS"]
 
 
 def test_without_user_text_json_holds_nulls(minimal_link):
     data = linkbudget.result_dict(linkbudget.evaluate(linkbudget.load(minimal_link)))
     assert data["description"] is None and data["source"] == {"name": None}
     assert data["receiver"]["name"] is None
-    assert all("note" not in segment for segment in data["segments"])
+    assert all("facts" not in row for row in data["rows"])

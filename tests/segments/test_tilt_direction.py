@@ -47,7 +47,7 @@ def misaligned(kind, direction=None, offset="2.1 um", tilt="0.75 deg"):
 def coupling_losses(chain):
     """case -> coupling loss [dB] of the row ``joint`` (a gap's beam part, without its ambient loss)."""
     found = row(evaluate(chain), "joint")
-    return found.detail.get("beam_loss_db", found.loss_db)
+    return found.loss_parts_db.get("beam", found.loss_db)
 
 
 def numeric_loss_db(azimuth_rad, offset_m=OFFSET, tilt_rad=TILT):

@@ -15,10 +15,10 @@ from hypothesis import strategies as st
 from numpy.testing import assert_allclose
 
 import linkbudget
+from linkbudget.segments.cases import CASES, CORNER
 from linkbudget.segments.waveguide import Waveguide
 from tests.segments.linktext import link_text, only_problem
 
-CASES = ("typ", "worst", "best")
 WL_1550 = np.array([1550e-9])
 
 
@@ -31,14 +31,14 @@ def test_loss_db_effective_index_born_wolf_flux_law():
     # -> 4.3429·81.07 = 352.1 dB/m = 3.521 dB/cm. The check value has 4 digits: atol 5e-4 dB.
     segment = waveguide(length="1 cm", effective_index="2.4+1e-5j")
     for case in CASES:
-        assert_allclose(segment.loss_db(WL_1550, case), [3.521], atol=5e-4)
+        assert_allclose(segment.loss_db(WL_1550, CORNER[case]), [3.521], atol=5e-4)
 
 
 def test_loss_db_effective_index_scales_as_inverse_wavelength():
     # Born & Wolf flux law: α = 4πκ/λ at fixed κ, so the loss at 1310 nm is 1550/1310 times that
     # at 1550 nm; only float rounding separates them (rtol 1e-12).
     segment = waveguide(length="2 mm", effective_index="1.9+3e-6j")
-    loss = segment.loss_db(np.array([1310e-9, 1550e-9]), "typ")
+    loss = segment.loss_db(np.array([1310e-9, 1550e-9]), CORNER["typ"])
     assert_allclose(loss[0] / loss[1], 1550 / 1310, rtol=1e-12)
 
 
@@ -49,7 +49,7 @@ def test_loss_db_attenuation_per_length_times_length():
                         attenuation={"min": "1.5 dB/cm", "typ": "2 dB/cm", "max": "3 dB/cm"})
     expected = {"typ": 1.0, "worst": 1.8, "best": 0.6}
     for case, loss_db in expected.items():
-        assert_allclose(segment.loss_db(WL_1550, case), [loss_db], rtol=1e-12)
+        assert_allclose(segment.loss_db(WL_1550, CORNER[case]), [loss_db], rtol=1e-12)
 
 
 def test_loss_parts_db_bends_and_crossings_add():
@@ -59,17 +59,17 @@ def test_loss_parts_db_bends_and_crossings_add():
                         bends={"count": 12, "loss": {"typ": "0.01 dB", "max": "0.03 dB"}},
                         crossings={"count": 4, "loss": "0.15 dB"})
     wavelength_m = np.array([1500e-9, 1550e-9, 1600e-9])
-    parts = segment.loss_parts_db(wavelength_m, "worst")
+    parts = segment.loss_parts_db(wavelength_m, CORNER["worst"])
     assert_allclose(parts["propagation"], [1.0] * 3, rtol=1e-12)
     assert_allclose(parts["bends"], [0.36] * 3, rtol=1e-12)
     assert_allclose(parts["crossings"], [0.6] * 3, rtol=1e-12)
-    assert_allclose(segment.loss_db(wavelength_m, "worst"), [1.96] * 3, rtol=1e-12)
-    assert_allclose(segment.loss_db(wavelength_m, "typ"), [1.72] * 3, rtol=1e-12)
+    assert_allclose(segment.loss_db(wavelength_m, CORNER["worst"]), [1.96] * 3, rtol=1e-12)
+    assert_allclose(segment.loss_db(wavelength_m, CORNER["typ"]), [1.72] * 3, rtol=1e-12)
 
 
 def test_loss_parts_db_absent_parts_are_zero():
     # A part that is not given loses nothing (0 dB is a power ratio of 1).
-    parts = waveguide(length="1 mm", attenuation="1 dB/mm").loss_parts_db(WL_1550, "typ")
+    parts = waveguide(length="1 mm", attenuation="1 dB/mm").loss_parts_db(WL_1550, CORNER["typ"])
     assert_allclose(parts["bends"], [0.0], atol=0)
     assert_allclose(parts["crossings"], [0.0], atol=0)
 
@@ -77,7 +77,7 @@ def test_loss_parts_db_absent_parts_are_zero():
 def test_loss_db_zero_length_is_zero():
     # Limit identity: a guide of zero length has no propagation loss, whatever its κ.
     for keys in ({"effective_index": "2.0+1e-3j"}, {"attenuation": "50 dB/cm"}):
-        assert_allclose(waveguide(length="0 mm", **keys).loss_db(WL_1550, "worst"), [0.0], atol=0)
+        assert_allclose(waveguide(length="0 mm", **keys).loss_db(WL_1550, CORNER["worst"]), [0.0], atol=0)
 
 
 lengths_mm = st.lists(st.floats(0.0, 50.0), min_size=3, max_size=3).map(sorted)
@@ -94,7 +94,7 @@ def test_loss_db_worst_at_least_typ_at_least_best(length, attenuation, bend, cou
 
     segment = waveguide(length=spread(length, "mm"), attenuation=spread(attenuation, "dB/cm"),
                         bends={"count": count, "loss": spread(bend, "dB")})
-    loss = {case: segment.loss_db(WL_1550, case) for case in CASES}
+    loss = {case: segment.loss_db(WL_1550, CORNER[case]) for case in CASES}
     assert np.all(loss["worst"] >= loss["typ"]) and np.all(loss["typ"] >= loss["best"])
 
 
@@ -102,18 +102,18 @@ def test_mode_circular_mode_field_diameter():
     # Mode convention of linkbudget.segments.base.Mode: the radius is half the 1/e² diameter.
     mode = waveguide(length="1 mm", attenuation="1 dB/cm",
                      mode_field_diameter={"min": "9 um", "typ": "10 um", "max": "10.6 um"}).mode(WL_1550)
-    for radii in (mode.radius_x_m, mode.radius_y_m):
-        assert_allclose([radii[end][0] for end in ("low", "typ", "high")], [4.5e-6, 5e-6, 5.3e-6], rtol=1e-12)
+    for axis in (mode.x, mode.y):
+        (low, high), typical = axis.ends(), axis.at(CORNER["typ"])
+        assert_allclose([low[0], typical[0], high[0]], [4.5e-6, 5e-6, 5.3e-6], rtol=1e-12)
 
 
 def test_mode_rectangular_mode_size():
     mode = waveguide(length="1 mm", attenuation="1 dB/cm",
                      mode_size={"width": {"typ": "3 um", "min": "2.8 um", "max": "3.2 um"},
                                 "height": "1 um"}).mode(np.array([1300e-9, 1550e-9]))
-    assert_allclose(mode.radius_x_m["low"], [1.4e-6] * 2, rtol=1e-12)
-    assert_allclose(mode.radius_x_m["typ"], [1.5e-6] * 2, rtol=1e-12)
-    assert_allclose(mode.radius_x_m["high"], [1.6e-6] * 2, rtol=1e-12)
-    assert_allclose(mode.radius_y_m["typ"], [0.5e-6] * 2, rtol=1e-12)
+    assert_allclose(mode.x.ends(), [[1.4e-6] * 2, [1.6e-6] * 2], rtol=1e-12)
+    assert_allclose(mode.x.at(CORNER["typ"]), [1.5e-6] * 2, rtol=1e-12)
+    assert_allclose(mode.y.at(CORNER["typ"]), [0.5e-6] * 2, rtol=1e-12)
 
 
 def test_mode_none_without_a_mode_size():
@@ -130,7 +130,7 @@ def test_evaluate_facet_fresnel_and_guide_rows():
          "bends": {"count": 12, "loss": "0.01 dB"}, "crossings": {"count": 4, "loss": "0.15 dB"}},
     ]))
     result = linkbudget.evaluate(link)
-    assert [row.kind for row in result.rows] == ["medium", "interface", "waveguide"]
+    assert [row.shown_kind for row in result.rows] == ["medium", "interface", "waveguide"]
     assert_allclose(result.loss_db["typ"][:, 0], [0.0, 1.5862, 1.72], atol=5e-5)
 
 
