@@ -16,7 +16,7 @@ __version__ = "0.1.0"
 __all__ = ["ConfigError", "LinkResult", "__version__", "evaluate", "load", "result_dict"]
 
 
-def load(source, *, base_dir=None, allow_paths=()):
+def load(source, *, base_dir=None, allow_paths=(), reader=None):
     """Load a link from a file path or from YAML text.
 
     Parameters
@@ -29,6 +29,10 @@ def load(source, *, base_dir=None, allow_paths=()):
         Folders outside the project that files the link refers to (material files) may lie in;
         without them every such file must lie inside the link's project: the nearest folder
         above the link holding ``.git`` or ``linkbudget.toml``, else the link's own folder.
+    reader : object with ``read(path, folder)``, optional
+        Where the link (given by path) and the files it refers to are read from, e.g.
+        ``linkbudget.reader.MemoryReader({"link.yaml": ..., "glass.yaml": ...})``; default: the
+        working tree, confined as above (see :mod:`linkbudget.reader`).
 
     Returns
     -------
@@ -42,8 +46,8 @@ def load(source, *, base_dir=None, allow_paths=()):
     from linkbudget.config import load_link, parse_link
 
     if isinstance(source, str) and "\n" in source:
-        return parse_link(source, "<string>", base_dir, allow_paths)
-    return load_link(source, allow_paths)
+        return parse_link(source, "<string>", base_dir, allow_paths, reader=reader)
+    return load_link(source, allow_paths, reader=reader)
 
 
 def evaluate(link, *, required_margin_db=None):

@@ -217,6 +217,7 @@ def materials(
     import numpy as np
     from rich.console import Console
 
+    from linkbudget.config import ConfigError
     from linkbudget.materials.dispersion import MaterialRangeError
     from linkbudget.materials.library import MaterialError, catalog_names, covering_hint, load_material
     from linkbudget.paths import PathRefused
@@ -242,6 +243,8 @@ def materials(
         _fail_input(f"{error}{format_hint(covering_hint(name, wavelength_m))}")
     except (MaterialError, PathRefused) as error:  # their messages name the material or file
         _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
+    except ConfigError as error:  # a malformed material file, placed
+        _fail_input(str(error))
 
 
 def _interrupted(signum, frame):

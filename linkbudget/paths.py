@@ -16,7 +16,7 @@ written on Windows is judged as it would be there; a leading ``~`` (a home folde
 import os
 import re
 import stat
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from pathlib import Path
 
 from linkbudget.text import escaped
@@ -49,9 +49,9 @@ def project_root(folder):
     return folder
 
 
-@dataclass
-class LinkFiles:
-    """Where the files a link refers to are found, which folders they may lie in, and which were read.
+@dataclass(frozen=True)
+class FileLocator:
+    """Where the files a link refers to are found and which folders they may lie in.
 
     Attributes
     ----------
@@ -60,13 +60,10 @@ class LinkFiles:
     roots : tuple of Path or None
         Resolved folders a file must lie in (project root, then allowed folders); ``None``: anywhere,
         for a path the user gave directly rather than through a link.
-    read : list of Path
-        Resolved paths handed out by :meth:`locate`, so that a report never overwrites one of them.
     """
 
     base_dir: Path
     roots: tuple | None
-    read: list = field(default_factory=list)
 
     @classmethod
     def for_link(cls, base_dir, allow_paths=()):
@@ -104,15 +101,14 @@ class LinkFiles:
             raise PathRefused(f"path '{shown}' is a folder, not a file")
         if not stat.S_ISREG(mode):
             raise PathRefused(f"path '{shown}' is not a regular file (a device, a FIFO or a socket)")
-        self.read.append(path)
         return path
 
 
 def read_regular_file(path, *, max_bytes):
-    """At most ``max_bytes + 1`` bytes of the regular file ``path`` (as given by :meth:`LinkFiles.locate`).
+    """At most ``max_bytes + 1`` bytes of the regular file ``path`` (as given by :meth:`FileLocator.locate`).
 
     Opened without following a last symlink and without blocking, and checked again once open, so a
-    file swapped for a FIFO or a device after :meth:`~LinkFiles.locate` is refused, not read.
+    file swapped for a FIFO or a device after :meth:`~FileLocator.locate` is refused, not read.
 
     Raises
     ------

@@ -6,7 +6,7 @@ an optional hint line; all problems of a file are collected, not only the first.
 
 import difflib
 import typing
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
@@ -14,7 +14,7 @@ from pydantic import BaseModel, ValidationError
 from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
-from linkbudget.paths import LinkFiles
+from linkbudget.reader import LinkFiles, WorkingTreeReader
 from linkbudget.segments.chain import chain_problems
 from linkbudget.yamlread import ReadError, read_text
 
@@ -144,7 +144,29 @@ def _validate_segment(item, index, positions):
     return segment, []
 
 
-def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
+def _referring_path(data, path, written):
+    """The key path below ``path`` in ``data`` whose value is the text ``written`` (first found), else ``path``."""
+    node = data
+    for part in path:
+        node = node[part]
+    items = node.items() if isinstance(node, dict) else enumerate(node) if isinstance(node, list) else ()
+    for key, value in items:
+        if value == written:
+            return (*path, key)
+        found = _referring_path(data, (*path, key), written)
+        if found != (*path, key):
+            return found
+    return path
+
+
+def _referred_problem(error, data, positions, path, files):
+    """A problem in a file the segment at ``path`` refers to, placed at the referring key, with the file's
+    own placed problem as its second line."""
+    where = path if files.last_asked is None else _referring_path(data, path, files.last_asked)
+    return replace(positions.problem(where, "the file named here has an error:"), cause=error.problems[0])
+
+
+def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=None):
     """Validate link text and return a :class:`Link`.
 
     Parameters
@@ -155,14 +177,18 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
         Name used in messages.
     base_dir : path-like, optional
         Folder for files the link refers to (own material files); default: the current folder.
-        Those files must lie inside the project holding it (see :mod:`linkbudget.paths`).
     allow_paths : iterable of path-like
-        Further folders those files may lie in.
+        Further folders those files may lie in, for the default reader.
+    reader : object with ``read(path, folder)``, optional
+        Where those files are read from (see :mod:`linkbudget.reader`); default: a
+        :class:`~linkbudget.reader.WorkingTreeReader`, which confines them to the project holding
+        ``base_dir`` (see :mod:`linkbudget.paths`). Each file is read once.
 
     Raises
     ------
     ConfigError
-        With every problem found, each placed at its line, column and key path.
+        With every problem found, each placed at its line, column and key path; an error inside a
+        file the link refers to is placed at the key naming it, with the file's own place below.
     """
     data, positions = load_yaml(text, file)
     if not isinstance(data, dict):
@@ -176,17 +202,21 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
     chain = data.get("chain")
     wavelength_m = None if spec is None else spec.wavelengths_m()
     segments, seen = [], {}
-    files = LinkFiles.for_link(base_dir, allow_paths)
+    files = LinkFiles(reader or WorkingTreeReader(tuple(allow_paths)), Path(base_dir or "."))
     for index, item in enumerate(chain if isinstance(chain, list) else []):
         segment, found = _validate_segment(item, index, positions)
         problems += found
         if segment is None:
             continue
         if spec is not None:
+            files.last_asked = None
             try:
                 segment = segment.resolve(wavelength_m, files)
             except InputProblem as problem:
                 problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
+                continue
+            except ConfigError as error:  # in a file the segment refers to
+                problems.append(_referred_problem(error, data, positions, ("chain", index), files))
                 continue
         if segment.name in seen:
             problems.append(positions.problem(
@@ -199,11 +229,18 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=()):
                     for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file, tuple(files.read), positions)
+    return Link(spec, tuple(segments), file, files.read_paths, positions)
 
 
-def load_link(path, allow_paths=()):
-    """Read and validate a link file; see :func:`parse_link`."""
+def load_link(path, allow_paths=(), *, reader=None):
+    """Read and validate a link file; see :func:`parse_link`.
+
+    With a ``reader``, the link itself is read through it too (``reader.read(path)``), as are the
+    files it refers to, relative to its folder; ``allow_paths`` is then the reader's business.
+    """
+    if reader is not None:
+        source = reader.read(str(path))
+        return parse_link(source.text, source.name, Path(str(path)).parent, reader=reader)
     path = Path(path)
     try:
         text = read_text(path)

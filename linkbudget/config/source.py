@@ -67,18 +67,29 @@ class ConfigError(Exception):
 
 @dataclass(frozen=True)
 class Problem:
-    """One input error: where it is and what is wrong, with an optional hint line."""
+    """One input error: where it is and what is wrong, with an optional hint line.
+
+    ``cause`` is the placed error in another file this place refers to (a material file): it is
+    written as the second line instead of the hint, so both places show in two lines.
+    """
 
     file: str
     mark: Mark | None
     path: tuple
     message: str
     hint: str | None = None
+    cause: "Problem | None" = None
+
+    def line(self):
+        """``FILE:LINE:COL: key.path: message``, escaped, without the hint."""
+        where = self.file if self.mark is None else f"{self.file}:{self.mark.line}:{self.mark.column}"
+        return f"{escaped(where)}: {escaped(format_key_path(self.path))}: {escaped(self.message)}"
 
     def render(self):
-        where = self.file if self.mark is None else f"{self.file}:{self.mark.line}:{self.mark.column}"
-        text = f"{escaped(where)}: {escaped(format_key_path(self.path))}: {escaped(self.message)}"
-        return text + format_hint(None if self.hint is None else escaped(self.hint))
+        if self.cause is not None:
+            inner = self.cause.line() + ("" if self.cause.hint is None else f" (hint: {escaped(self.cause.hint)})")
+            return f"{self.line()}\n  {inner}"
+        return self.line() + format_hint(None if self.hint is None else escaped(self.hint))
 
 
 @dataclass
@@ -109,10 +120,14 @@ def _mark(node):
 class _Builder:
     """Turns composed YAML nodes into plain data, recording the mark of every key path."""
 
-    def __init__(self, positions):
+    def __init__(self, positions, quote_input):
         self.positions = positions
+        self.quote_input = quote_input
 
-    def fail(self, node, path, message, hint=None):
+    def fail(self, node, path, message, hint=None, *, discreet=None):
+        """Stop at ``node``; ``discreet`` is the message to give instead when the file may not be quoted."""
+        if discreet is not None and not self.quote_input:
+            message = discreet
         problem = Problem(self.positions.file, _mark(node), tuple(path), message, hint)
         raise ConfigError([problem])
 
@@ -131,9 +146,11 @@ class _Builder:
         if node.tag == expected:
             return
         if node.tag in _SCALARS or node.tag in _COLLECTIONS.values():
-            self.fail(node, path, f"YAML tag {node.tag!r} does not fit this {node.id}")
+            self.fail(node, path, f"YAML tag {node.tag!r} does not fit this {node.id}",
+                      discreet=f"a YAML tag does not fit this {node.id}")
         self.fail(node, path, f"unsupported YAML tag {node.tag!r}",
-                  "link files hold plain text, numbers, lists and mappings only")
+                  "link and material files hold plain text, numbers, lists and mappings only",
+                  discreet="unsupported YAML tag")
 
     def pairs(self, node, path):
         """``key -> (key node, value node)`` of a mapping, merge keys applied (YAML 1.1).
@@ -156,7 +173,8 @@ class _Builder:
             if not isinstance(key, str):
                 self.fail(key_node, path, "mapping keys must be plain names")
             if key in written:
-                self.fail(key_node, (*path, key), "duplicate key")
+                shown = (*path, key) if self.quote_input else path
+                self.fail(key_node, shown, "duplicate key")
             written[key] = (key_node, value_node)
         written.pop(_MERGE, None)
         pairs = {**merged, **written}
@@ -179,11 +197,13 @@ class _Builder:
             self.check_tag(node, path, None)
         pattern, value = _SCALARS[node.tag]
         if pattern is not None and not pattern.fullmatch(node.value):
-            self.fail(node, path, f"{node.value!r} cannot be read as {node.tag.replace(_CORE, '!!')}")
+            tag = node.tag.replace(_CORE, "!!")
+            self.fail(node, path, f"{node.value!r} cannot be read as {tag}",
+                      discreet=f"a value cannot be read as {tag}")
         return value(node.value)
 
 
-def load_yaml(text, file="<string>"):
+def load_yaml(text, file="<string>", *, quote_input=True):
     """Parse YAML text into plain data and the positions of its key paths.
 
     The reading bounds of :mod:`linkbudget.yamlread` apply (size of each text, nodes with
@@ -195,6 +215,10 @@ def load_yaml(text, file="<string>"):
         The document.
     file : str
         Name used in error messages.
+    quote_input : bool
+        Whether a message may repeat text of the file (a YAML syntax error's, a tag, a value, a
+        duplicate key). ``False`` for a file a link points at, which could be anyone's: the message
+        then says what is wrong and where, never what is written there.
 
     Returns
     -------
@@ -211,7 +235,8 @@ def load_yaml(text, file="<string>"):
         node = compose(text)
     except ReadError as error:
         where = None if error.line is None else Mark(error.line, error.column)
-        raise ConfigError([Problem(file, where, (), str(error), error.hint)]) from None
+        message = str(error) if quote_input or not error.quotes_input else "not valid YAML"
+        raise ConfigError([Problem(file, where, (), message, error.hint)]) from None
     if node is None:
         raise ConfigError([Problem(file, Mark(1, 1), (), "the file is empty")])
-    return _Builder(positions).build(node, ()), positions
+    return _Builder(positions, quote_input).build(node, ()), positions

@@ -4,8 +4,9 @@ from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import (
     Material,
     MaterialError,
+    MaterialFileError,
     catalog_names,
     load_material,
 )
 
-__all__ = ["Material", "MaterialError", "MaterialRangeError", "catalog_names", "load_material"]
+__all__ = ["Material", "MaterialError", "MaterialFileError", "MaterialRangeError", "catalog_names", "load_material"]

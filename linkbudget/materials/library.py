@@ -26,7 +26,8 @@ and exactly one model, named by its key:
   its first and last row, so a table takes no ``valid_range``.
 
 Lengths are written with their unit: ``nm``, ``um`` or ``µm``. Unknown keys, a missing source and
-unknown units are errors (:class:`MaterialError`).
+unknown units are errors (:class:`MaterialFileError`), placed at ``FILE:LINE:COL: key.path``
+as a link's are, since a material file is read by the same YAML reader.
 """
 
 import difflib
@@ -40,15 +41,14 @@ from importlib import resources
 from pathlib import Path
 
 import numpy as np
-import yaml
 
+from linkbudget.config.source import ConfigError, load_yaml
 from linkbudget.materials import dispersion
 from linkbudget.materials.dispersion import require_in_range
-from linkbudget.paths import LinkFiles, read_regular_file
+from linkbudget.paths import FileLocator
 from linkbudget.physics import flux
-from linkbudget.text import escaped
+from linkbudget.reader import Source, located_source
 from linkbudget.units import UNITS
-from linkbudget.yamlread import MAX_FILE_BYTES, ReadError, bounded_text, compose
 
 _CATALOG = resources.files(__package__).joinpath("catalog")
 
@@ -64,7 +64,19 @@ _TABLE_COLUMNS = (["wavelength", "n", "k"], ["wavelength", "n"])
 
 
 class MaterialError(ValueError):
-    """A material name is unknown or a material file is malformed."""
+    """A material name is unknown."""
+
+
+class MaterialFileError(ConfigError):
+    """A material file is malformed: its problem placed at ``FILE:LINE:COL: key.path``, like a link's."""
+
+
+class _Invalid(ValueError):
+    """A malformed value at ``key_path`` of a material file (at its key if ``at_key``), before it is placed."""
+
+    def __init__(self, key_path, message, *, at_key=False):
+        super().__init__(message)
+        self.key_path, self.at_key = tuple(key_path), at_key
 
 
 @dataclass(frozen=True)
@@ -143,29 +155,25 @@ def load_material(name_or_path, *, base_dir=None, files=None):
     base_dir : str or os.PathLike, optional
         Folder a relative path is taken from; the current directory when omitted. The path may
         lead anywhere: for a path the caller gives directly.
-    files : linkbudget.paths.LinkFiles, optional
-        For a path written in a link: where it starts from and the folders it must lie in (see
-        :mod:`linkbudget.paths`); replaces ``base_dir``.
+    files : linkbudget.reader.LinkFiles, optional
+        For a path written in a link: the link's reader and folder (see :mod:`linkbudget.reader`),
+        which confine it and read each file once; replaces ``base_dir``.
 
     Raises
     ------
     MaterialError
-        Unknown name (with close matches) or malformed content; the messages name the keys of
+        Unknown catalog name (with close matches).
+    MaterialFileError
+        Malformed content, placed at ``FILE:LINE:COL: key.path``; the messages name the keys of
         the material language but never quote a value of the file.
     linkbudget.paths.PathRefused
-        A path outside ``files.roots``, a missing file, or one that is not a regular file.
+        A path outside the link's project, a missing file, or one that is not a regular file.
     """
     text = str(name_or_path)
     if isinstance(name_or_path, os.PathLike) or "/" in text or "\\" in text or text.endswith((".yaml", ".yml")):
-        files = files or LinkFiles(Path(base_dir or "."), roots=None)
-        path = files.locate(text)
-        try:
-            content = bounded_text(read_regular_file(path, max_bytes=MAX_FILE_BYTES))
-        except ReadError as error:
-            raise MaterialError(f"{escaped(text)}: not a material file ({error})") from None
-        except UnicodeDecodeError:
-            raise MaterialError(f"{escaped(text)}: not a material file (not UTF-8 text)") from None
-        return _parse(content, escaped(text))
+        if files is None:
+            return parse_material(located_source(FileLocator(Path(base_dir or "."), None), text, text))
+        return parse_material(files.read(text))
     return _catalog_material(text)
 
 
@@ -188,48 +196,57 @@ def _catalog_material(name):
         close = difflib.get_close_matches(name, names, n=3, cutoff=0.6)
         hint = f"did you mean {', '.join(close)}?" if close else f"catalog materials: {', '.join(names)}"
         raise MaterialError(f"unknown material {name!r}; {hint} (or give the path of a material file)")
-    return _parse(_CATALOG.joinpath(f"{name}.yaml").read_text(encoding="utf-8"), f"catalog file {name}.yaml")
+    resource = _CATALOG.joinpath(f"{name}.yaml")
+    return parse_material(Source(f"catalog/{name}.yaml", resource.read_text(encoding="utf-8")))
 
 
-def _parse(content, origin):
+def parse_material(source):
+    """The :class:`Material` of a material file's :class:`~linkbudget.reader.Source`.
+
+    Read by the link loader's YAML reader (:func:`linkbudget.config.source.load_yaml`, with its
+    bounds), without quoting the file in any message.
+
+    Raises
+    ------
+    MaterialFileError
+        With the problem placed at ``FILE:LINE:COL: key.path``.
+    """
     try:
-        node = compose(content)
-        document = None if node is None else yaml.SafeLoader("").construct_document(node)
-    except ReadError as error:  # a message that quotes the file gives only the place
-        at = f" at line {error.line}, column {error.column}" if error.line else ""
-        why = "not valid YAML" if error.quotes_input else str(error)
-        raise MaterialError(f"{origin}: not a material file ({why}{at})") from None
-    except (yaml.YAMLError, ValueError, LookupError) as error:  # a written tag that does not fit its text
-        mark = getattr(error, "problem_mark", None)
-        at = f" at line {mark.line + 1}, column {mark.column + 1}" if mark else ""
-        raise MaterialError(f"{origin}: not a material file (not valid YAML{at})") from None
-    if not isinstance(document, dict):
-        raise MaterialError(f"{origin}: not a material file (expected a mapping of keys)")
+        data, positions = load_yaml(source.text, source.name, quote_input=False)
+    except ConfigError as error:
+        raise MaterialFileError(error.problems) from None
+    try:
+        return _material(data)
+    except _Invalid as invalid:
+        raise MaterialFileError([positions.problem(invalid.key_path, str(invalid), at_key=invalid.at_key)]) from None
+
+
+def _material(document):
     top = _check_keys(
-        document,
+        _mapping(document, ()),
         required={"name", "description", "source"},
         optional={"data_via", "valid_range", *_MODELS},
-        where=origin,
+        where=(),
     )
     models = [key for key in _MODELS if key in top]
     if len(models) != 1:
-        raise MaterialError(f"{origin}: give exactly one model, one of {', '.join(_MODELS)}; found {len(models)}")
+        raise _Invalid((), f"give exactly one model, one of {', '.join(_MODELS)}; found {len(models)}")
     (model,) = models
-    name = _text(top["name"], f"{origin}: name")
+    name = _text(top["name"], ("name",))
     if not _NAME.fullmatch(name):
-        raise MaterialError(f"{origin}: name: must be lowercase words joined by hyphens")
-    evaluate, table_range_m = _MODELS[model](top[model], f"{origin}: {model}")
+        raise _Invalid(("name",), "must be lowercase words joined by hyphens")
+    evaluate, table_range_m = _MODELS[model](top[model], (model,))
     if table_range_m is not None and "valid_range" in top:
-        raise MaterialError(f"{origin}: valid_range: not allowed with a table, whose range is its first and last row")
+        raise _Invalid(("valid_range",), "not allowed with a table, whose range is its first and last row")
     if table_range_m is None and "valid_range" not in top:
-        raise MaterialError(f"{origin}: missing key 'valid_range' (a formula needs the range its source states)")
+        raise _Invalid((), "missing key 'valid_range' (a formula needs the range its source states)")
     return Material(
         name=name,
-        description=_text(top["description"], f"{origin}: description"),
-        source=_text(top["source"], f"{origin}: source"),
-        valid_range_m=table_range_m or _range(top["valid_range"], f"{origin}: valid_range"),
+        description=_text(top["description"], ("description",)),
+        source=_text(top["source"], ("source",)),
+        valid_range_m=table_range_m or _range(top["valid_range"], ("valid_range",)),
         dispersion=evaluate,
-        data_via=None if top.get("data_via") is None else _text(top["data_via"], f"{origin}: data_via"),
+        data_via=None if top.get("data_via") is None else _text(top["data_via"], ("data_via",)),
     )
 
 
@@ -239,7 +256,7 @@ def _parse(content, origin):
 def _sellmeier(block, where):
     block = _check_keys(_mapping(block, where), required={"b", "c"}, optional={"a"}, where=where)
     b, c_m = _resonances(block, where, b_units=None, c_units=_LENGTH_M)
-    a = _number(block.get("a", 0.0), f"{where}.a")
+    a = _number(block.get("a", 0.0), (*where, "a"))
     return functools.partial(dispersion.sellmeier, b=b, c_m=c_m, a=a), None
 
 
@@ -247,7 +264,7 @@ def _gas(block, where):
     block = _check_keys(_mapping(block, where), required={"b", "c"}, optional={"a"}, where=where)
     units = _INVERSE_SQUARE_LENGTH_PER_M2
     b_per_m2, c_per_m2 = _resonances(block, where, b_units=units, c_units=units)
-    a = _number(block.get("a", 0.0), f"{where}.a")
+    a = _number(block.get("a", 0.0), (*where, "a"))
     return functools.partial(dispersion.gas_dispersion, b_per_m2=b_per_m2, c_per_m2=c_per_m2, a=a), None
 
 
@@ -255,11 +272,11 @@ def _cauchy(block, where):
     block = _check_keys(
         _mapping(block, where), required={"wavelength_unit", "coefficients", "powers"}, optional=set(), where=where
     )
-    um_per_unit = _unit(block["wavelength_unit"], f"{where}.wavelength_unit") / _LENGTH_M["um"]
-    coefficients = _numbers(block["coefficients"], f"{where}.coefficients")
-    powers = _numbers(block["powers"], f"{where}.powers")
+    um_per_unit = _unit(block["wavelength_unit"], (*where, "wavelength_unit")) / _LENGTH_M["um"]
+    coefficients = _numbers(block["coefficients"], (*where, "coefficients"))
+    powers = _numbers(block["powers"], (*where, "powers"))
     if len(coefficients) != len(powers):
-        raise MaterialError(f"{where}: {len(coefficients)} coefficients but {len(powers)} powers")
+        raise _Invalid(where, f"{len(coefficients)} coefficients but {len(powers)} powers")
     # A·λ_unit^p = A·(λ_um / um_per_unit)^p: rescale once to the µm coefficients cauchy() takes.
     coefficients_um = tuple(value * um_per_unit**-power for value, power in zip(coefficients, powers, strict=True))
     return functools.partial(dispersion.cauchy, coefficients=coefficients_um, powers=powers), None
@@ -269,18 +286,18 @@ def _table(block, where):
     block = _check_keys(
         _mapping(block, where), required={"wavelength_unit", "columns", "rows"}, optional=set(), where=where
     )
-    unit_m = _unit(block["wavelength_unit"], f"{where}.wavelength_unit")
+    unit_m = _unit(block["wavelength_unit"], (*where, "wavelength_unit"))
     columns = block["columns"]
     if columns not in _TABLE_COLUMNS:
-        raise MaterialError(f"{where}.columns: must be [wavelength, n, k] or [wavelength, n]")
+        raise _Invalid((*where, "columns"), "must be [wavelength, n, k] or [wavelength, n]")
     rows = block["rows"]
     if not isinstance(rows, list) or len(rows) < 2:
-        raise MaterialError(f"{where}.rows: need a list of at least two rows")
+        raise _Invalid((*where, "rows"), "need a list of at least two rows")
     for i, row in enumerate(rows):
         if not isinstance(row, list) or len(row) != len(columns):
-            raise MaterialError(f"{where}.rows[{i}]: need a list of {len(columns)} numbers ({', '.join(columns)})")
+            raise _Invalid((*where, "rows", i), f"need a list of {len(columns)} numbers ({', '.join(columns)})")
         for j, value in enumerate(row):
-            _number(value, f"{where}.rows[{i}][{j}]")
+            _number(value, (*where, "rows", i, j))
     values = np.array(rows, dtype=float)
     wavelength_m = values[:, 0] * unit_m
     n = values[:, 1].copy()
@@ -295,7 +312,7 @@ def _table(block, where):
     )
     for ok, problem in checks:
         if not np.all(ok):
-            raise MaterialError(f"{where}.rows[{int(np.argmin(ok))}]: {problem}")
+            raise _Invalid((*where, "rows", int(np.argmin(ok))), problem)
     evaluate = functools.partial(dispersion.tabulated, table_wavelength_m=wavelength_m, n=n, k=k)
     return evaluate, (float(wavelength_m[0]), float(wavelength_m[-1]))
 
@@ -308,7 +325,7 @@ _MODELS = {"sellmeier": _sellmeier, "cauchy": _cauchy, "gas": _gas, "table": _ta
 
 def _mapping(value, where):
     if not isinstance(value, dict):
-        raise MaterialError(f"{where}: expected a mapping of keys, got {type(value).__name__}")
+        raise _Invalid(where, f"expected a mapping of keys, got {type(value).__name__}")
     return value
 
 
@@ -318,10 +335,11 @@ def _check_keys(mapping, *, required, optional, where):
         if key not in allowed:
             close = difflib.get_close_matches(str(key), sorted(allowed), n=1)
             hint = f" (did you mean {close[0]!r}?)" if close else f" (allowed: {', '.join(sorted(allowed))})"
-            raise MaterialError(f"{where}: unknown key {_shown_key(key)}{hint}")
+            shown = _shown_key(key)
+            raise _Invalid(where if shown.startswith("(") else (*where, key), f"unknown key {shown}{hint}", at_key=True)
     missing = sorted(required - set(mapping))
     if missing:
-        raise MaterialError(f"{where}: missing key {', '.join(map(repr, missing))}")
+        raise _Invalid(where, f"missing key {', '.join(map(repr, missing))}")
     return mapping
 
 
@@ -346,7 +364,7 @@ def _rejected_number(value):
 
 def _text(value, where):
     if not isinstance(value, str) or not value.strip():
-        raise MaterialError(f"{where}: must be non-empty text")
+        raise _Invalid(where, "must be non-empty text")
     return value.strip()
 
 
@@ -355,26 +373,26 @@ def _number(value, where):
         hint = ""
         if isinstance(value, str) and re.fullmatch(_NUMBER, value.strip()):
             hint = " (YAML read it as text: do not quote numbers)"
-        raise MaterialError(f"{where}: expected a finite number, got {_rejected_number(value)}{hint}")
+        raise _Invalid(where, f"expected a finite number, got {_rejected_number(value)}{hint}")
     return float(value)
 
 
 def _numbers(value, where):
     if not isinstance(value, list) or not value:
-        raise MaterialError(f"{where}: expected a non-empty list of numbers")
-    return tuple(_number(item, f"{where}[{i}]") for i, item in enumerate(value))
+        raise _Invalid(where, "expected a non-empty list of numbers")
+    return tuple(_number(item, (*where, i)) for i, item in enumerate(value))
 
 
 def _unit(value, where, table=_LENGTH_M):
     if not isinstance(value, str) or value not in table:
-        raise MaterialError(f"{where}: unknown unit; use one of {', '.join(table)}")
+        raise _Invalid(where, f"unknown unit; use one of {', '.join(table)}")
     return table[value]
 
 
 def _quantity(value, where, table):
     match = _QUANTITY.fullmatch(value) if isinstance(value, str) else None
     if match is None:
-        raise MaterialError(f"{where}: expected a number with a unit ({', '.join(table)})")
+        raise _Invalid(where, f"expected a number with a unit ({', '.join(table)})")
     return float(match[1]) * _unit(match[2], where, table)
 
 
@@ -382,11 +400,11 @@ def _resonances(block, where, *, b_units, c_units):
     """The paired b and c lists of a resonance model; numbers where the units are None."""
     b, c = block["b"], block["c"]
     if not isinstance(b, list) or not isinstance(c, list) or not b or len(b) != len(c):
-        raise MaterialError(f"{where}: b and c must be non-empty lists of the same length")
+        raise _Invalid(where, "b and c must be non-empty lists of the same length")
 
     def values(items, key, units):
         return tuple(
-            _number(item, f"{where}.{key}[{i}]") if units is None else _quantity(item, f"{where}.{key}[{i}]", units)
+            _number(item, (*where, key, i)) if units is None else _quantity(item, (*where, key, i), units)
             for i, item in enumerate(items)
         )
 
@@ -395,7 +413,7 @@ def _resonances(block, where, *, b_units, c_units):
 
 def _range(value, where):
     value = _check_keys(_mapping(value, where), required={"from", "to"}, optional=set(), where=where)
-    low_m, high_m = (_quantity(value[end], f"{where}.{end}", _LENGTH_M) for end in ("from", "to"))
+    low_m, high_m = (_quantity(value[end], (*where, end), _LENGTH_M) for end in ("from", "to"))
     if not 0 < low_m < high_m:
-        raise MaterialError(f"{where}: need 0 < from < to")
+        raise _Invalid(where, "need 0 < from < to")
     return (low_m, high_m)

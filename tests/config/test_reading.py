@@ -5,8 +5,8 @@ import os
 import pytest
 
 import linkbudget
-from linkbudget.config.source import load_yaml
-from linkbudget.materials.library import MaterialError, load_material
+from linkbudget.config.source import ConfigError, load_yaml
+from linkbudget.materials.library import load_material
 from linkbudget.paths import PathRefused
 from linkbudget.yamlread import MAX_FILE_BYTES, MAX_NODES, ReadError, compose, read_text
 from tests.conftest import MINIMAL_LINK
@@ -78,7 +78,7 @@ def test_load_material_oversized_file_is_refused(tmp_path):
     path = tmp_path / "huge.yaml"
     with open(path, "wb") as stream:  # sparse: its size without writing its bytes
         stream.truncate(MAX_FILE_BYTES + 1)
-    with pytest.raises(MaterialError, match="larger than"):
+    with pytest.raises(ConfigError, match="larger than"):
         load_material(path)
 
 
@@ -88,12 +88,12 @@ def test_load_material_alias_bomb_is_refused_while_reading(tmp_path):
         for previous, name in zip("abcdefgh", "bcdefghi", strict=True))
     path = tmp_path / "bomb.yaml"
     path.write_text(bomb, encoding="utf-8")
-    with pytest.raises(MaterialError, match=f"more than {MAX_NODES} nodes"):
+    with pytest.raises(ConfigError, match=f"more than {MAX_NODES} nodes"):
         load_material(path)
 
 
 def test_load_material_recursive_alias_is_refused(tmp_path):
     path = tmp_path / "loop.yaml"
     path.write_text("name: loop\nrows: &r [*r]\n", encoding="utf-8")
-    with pytest.raises(MaterialError, match="alias"):
+    with pytest.raises(ConfigError, match="alias"):
         load_material(path)

@@ -218,12 +218,12 @@ def test_api_text_source_is_confined_to_the_project_of_base_dir(tree):
     ("[1.5, 0.004]", f"[1.5, {SECRET}]", "coefficients[1]: expected a finite number, got text"),
     ("400 nm", f"400 {SECRET}", "valid_range.from: unknown unit"),
     ("to: 1.6 um", f"to: {SECRET}", "valid_range.to: expected a number with a unit"),
-    (None, f"root:x:0:0:{SECRET}:/root:/bin/sh\n", "not a material file (expected a mapping of keys)"),
-    (None, f"{SECRET}: [unclosed\n  - {SECRET}\n", "not a material file (not valid YAML at line"),
-    (None, f"!!python/object {SECRET}\n", "not a material file (not valid YAML at line"),
-    (None, f"name: {{ {SECRET}\n", "not a material file (not valid YAML at line"),
-    (None, f"key: 'ok'\n\t{SECRET}\n", "not a material file (not valid YAML at line"),
-    (None, b"\xff\xfe" + SECRET.encode(), "not a material file (not UTF-8 text)"),
+    (None, f"root:x:0:0:{SECRET}:/root:/bin/sh\n", "bad.yaml:1:1: (top level): expected a mapping of keys"),
+    (None, f"{SECRET}: [unclosed\n  - {SECRET}\n", "bad.yaml:3:1: (top level): not valid YAML"),
+    (None, f"!!python/object {SECRET}\n", "bad.yaml:1:1: (top level): unsupported YAML tag"),
+    (None, f"name: {{ {SECRET}\n", "bad.yaml:2:1: (top level): not valid YAML"),
+    (None, f"key: 'ok'\n\t{SECRET}\n", "bad.yaml:2:1: (top level): not valid YAML"),
+    (None, b"\xff\xfe" + SECRET.encode(), "bad.yaml:1:1: (top level): not UTF-8 text"),
     (None, f"table: {{wavelength_unit: nm, columns: [{SECRET}], rows: []}}\n"
            "name: a\ndescription: b\nsource: c\n", "columns: must be [wavelength, n, k]"),
     (None, f"table: {{wavelength_unit: nm, columns: [wavelength, n], rows: [[{SECRET}], [1, 2]]}}\n"

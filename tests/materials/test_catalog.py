@@ -7,7 +7,14 @@ import pytest
 import yaml
 from numpy.testing import assert_allclose
 
-from linkbudget.materials import Material, MaterialError, MaterialRangeError, catalog_names, load_material
+from linkbudget.materials import (
+    Material,
+    MaterialError,
+    MaterialFileError,
+    MaterialRangeError,
+    catalog_names,
+    load_material,
+)
 from linkbudget.paths import PathRefused
 from linkbudget.physics.flux import absorption_coefficient_from_kappa
 from tests.conftest import TEST_GLASS
@@ -277,8 +284,8 @@ table:
         (TEST_GLASS, "name: test-glass", "name: Test Glass", r"lowercase words joined by hyphens"),
         (TEST_GLASS, "cauchy:", "kauchy:", r"unknown key 'kauchy' \(did you mean 'cauchy'\?\)"),
         (TEST_GLASS, "cauchy:", "sellmeier: {b: [1.0], c: [0.1 um]}\ncauchy:", r"exactly one model"),
-        (TEST_GLASS, TEST_GLASS, "[1.5, 0.004]\n", r"bad\.yaml: not a material file \(expected a mapping of keys\)"),
-        (TEST_GLASS, "powers: [0, -2]", "powers: [0, -2", r"bad\.yaml: not a material file \(not valid YAML at line 9, column 1\)"),
+        (TEST_GLASS, TEST_GLASS, "[1.5, 0.004]\n", r"^bad\.yaml:1:1: \(top level\): expected a mapping"),
+        (TEST_GLASS, "powers: [0, -2]", "powers: [0, -2", r"^bad\.yaml:9:1: \(top level\): not valid YAML"),
         (TABLE_MATERIAL, "source:", "valid_range: {from: 1 um, to: 2 um}\nsource:", r"valid_range: not allowed"),
         (TABLE_MATERIAL, "[2.0, 1.9, 0.002]", "[0.5, 1.9, 0.002]", r"rows\[0\]: wavelengths must increase"),
         (TABLE_MATERIAL, "0.002]", "-0.002]", r"rows\[1\]: k must be >= 0"),
@@ -291,7 +298,7 @@ table:
 def test_load_material_malformed_user_file_raises(tmp_path, base, old, new, message):
     assert old in base
     _write(tmp_path, "bad.yaml", base.replace(old, new))
-    with pytest.raises(MaterialError, match=message):
+    with pytest.raises(MaterialFileError, match=message):
         load_material("bad.yaml", base_dir=tmp_path)
 
 
@@ -308,7 +315,7 @@ def test_load_material_malformed_user_file_raises(tmp_path, base, old, new, mess
 def test_load_material_malformed_formula_block_raises(tmp_path, block, message):
     text = TEST_GLASS[: TEST_GLASS.index("cauchy:")] + block + "\n"
     _write(tmp_path, "bad.yaml", text)
-    with pytest.raises(MaterialError, match=message):
+    with pytest.raises(MaterialFileError, match=message):
         load_material("bad.yaml", base_dir=tmp_path)
 
 
