@@ -154,7 +154,7 @@ class SegmentSpec(Strict):
         """Check what needs the wavelength axis or other files (materials); return the resolved
         segment, a new object (this one, read from the file, is never changed).
 
-        ``files`` (:class:`linkbudget.paths.LinkFiles`) locates the files the link refers to.
+        ``files`` (:class:`linkbudget.reader.LinkFiles`) reads the files the link refers to.
         Raises :class:`InputProblem` for input the schema alone cannot judge.
         """
         return self
