@@ -31,6 +31,8 @@ chain:
 
 #: The example links shipped with the project; the tests run every one of them.
 CONFIGS = sorted((Path(__file__).resolve().parents[1] / "configs").glob("*.yaml"))
+#: A link with every registered segment kind once, each where it can stand (the contract suite's).
+EVERY_KIND = Path(__file__).resolve().parent / "data" / "every-kind.yaml"
 
 
 @pytest.fixture

@@ -56,12 +56,12 @@ def absorption_coefficient_per_m(wavelength_m, *, kappa=None, absorption_per_m=N
     given = [value is not None for value in (kappa, absorption_per_m, attenuation_db_per_m)]
     if sum(given) != 1:
         raise ValueError("give exactly one of kappa, absorption or attenuation")
-    shape = np.shape(wavelength_m)
+    ones = np.ones(np.shape(wavelength_m))  # a column of draws broadcasts to (n_draws, n_wavelengths)
     if kappa is not None:
         return flux.absorption_coefficient_from_kappa(kappa, wavelength_m)
     if absorption_per_m is not None:
-        return np.broadcast_to(np.asarray(absorption_per_m, dtype=float), shape)
-    return np.broadcast_to(flux.absorption_from_attenuation_db_per_m(attenuation_db_per_m), shape)
+        return np.asarray(absorption_per_m, dtype=float) * ones
+    return flux.absorption_from_attenuation_db_per_m(attenuation_db_per_m) * ones
 
 
 class Fiber(OpticalSegment):

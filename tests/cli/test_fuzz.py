@@ -43,7 +43,7 @@ import typer
 
 from linkbudget.cli import app
 from tests.cli.mutants import Example, mutants, schema_keys
-from tests.conftest import CONFIGS
+from tests.conftest import CONFIGS, EVERY_KIND
 
 #: Mutants run per example (issue 7: "at least 2,000 mutants of every shipped example").
 MUTANTS_PER_EXAMPLE = 2000
@@ -61,6 +61,9 @@ LONGEST_TEXT = 10_000
 #: list index.
 NULLABLE = {("receiver", "overload_dbm"), ("receiver", "name"), ("source", "name"), ("description",),
             ("rows", "*", "segment_kind")}
+
+#: The links the mutants start from: the shipped examples, and a link with every segment kind once.
+BASES = [*CONFIGS, EVERY_KIND]
 
 #: The formats a loaded mutant is also run in, one per mutant in turn.
 OTHER_FORMATS = ("terminal", "markdown", "csv")
@@ -238,7 +241,7 @@ def examples():
     from linkbudget.units import UNITS
 
     keys = schema_keys([LinkSpec, *KINDS.values()])
-    plain = {path: Example(path.read_text(encoding="utf-8"), keys=keys, units=UNITS, kinds=KINDS) for path in CONFIGS}
+    plain = {path: Example(path.read_text(encoding="utf-8"), keys=keys, units=UNITS, kinds=KINDS) for path in BASES}
     return {path: Example(example.text, keys=keys, units=UNITS, kinds=KINDS,
                           donors=[other for other_path, other in plain.items() if other_path != path])
             for path, example in plain.items()}
@@ -264,7 +267,7 @@ def run_mutants(pool, name, batch, chunks=8):
     return [result for part in pool.map(run_chunk, [name] * len(parts), parts) for result in part]
 
 
-@pytest.mark.parametrize("config", CONFIGS, ids=[path.name for path in CONFIGS])
+@pytest.mark.parametrize("config", BASES, ids=[path.name for path in BASES])
 def test_fuzz_example_mutants_keep_exit_contract(config, example_graphs, pool):
     batch = mutants(example_graphs[config], config.stem, MUTANTS_PER_EXAMPLE)
     assert len({data for _, data in batch}) == MUTANTS_PER_EXAMPLE
