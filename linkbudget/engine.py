@@ -117,12 +117,10 @@ class LinkResult:
 
 
 def _stated_share(polarization, cases):
-    """case name -> polarization -> power share, for light stated to be of ``polarization``."""
-    return {case.name: dict(_STATED_SHARES[polarization]) for case in cases}
-
-
-#: Power shares of s and p light for each ``polarization`` a segment may state.
-_STATED_SHARES = {"unpolarized": {"s": 0.5, "p": 0.5}, "s": {"s": 1.0, "p": 0.0}, "p": {"s": 0.0, "p": 1.0}}
+    """case name -> polarization -> power share, for light stated to be of ``polarization``
+    (a name of :data:`~linkbudget.physics.fresnel.POLARIZATIONS`: its linear parts share the power)."""
+    parts = fresnel.POLARIZATIONS[polarization]
+    return {case.name: {pol: 1.0 / len(parts) if pol in parts else 0.0 for pol in POLARIZATIONS} for case in cases}
 
 
 def _pass(share, transmittance):

@@ -79,8 +79,11 @@ EXAMPLES = {
 #: Example shown for a length that is a wavelength.
 WAVELENGTH_EXAMPLE = "1550 nm"
 
+#: A decimal number as the config language writes one (``-1.5``, ``.5``, ``2e-3``); the one pattern for numbers.
+NUMBER_PATTERN = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?"
+
 _QUANTITY = re.compile(
-    r"^\s*(?P<number>[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?)\s*(?P<unit>\S*)\s*$", re.ASCII
+    rf"^\s*(?P<number>{NUMBER_PATTERN})\s*(?P<unit>\S*)\s*$", re.ASCII
 )
 
 

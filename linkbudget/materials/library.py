@@ -48,15 +48,14 @@ from linkbudget.materials.dispersion import require_in_range
 from linkbudget.paths import FileLocator
 from linkbudget.physics import flux
 from linkbudget.reader import Source, located_source
-from linkbudget.units import UNITS
+from linkbudget.units import NUMBER_PATTERN, UNITS
 
 _CATALOG = resources.files(__package__).joinpath("catalog")
 
 # length units of the one unit table (linkbudget.units), by spelling -> metres
 _LENGTH_M = {unit: factor for unit, (dimension, factor) in UNITS.items() if dimension == "length"}
 _INVERSE_SQUARE_LENGTH_PER_M2 = {f"{unit}^-2": scale**-2 for unit, scale in _LENGTH_M.items()}
-_NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
-_QUANTITY = re.compile(rf"\s*({_NUMBER})\s*(\S+)\s*")
+_QUANTITY = re.compile(rf"\s*({NUMBER_PATTERN})\s*(\S+)\s*")
 _NAME = re.compile(r"[a-z0-9]+(?:-[a-z0-9]+)*")
 #: An unknown key short and plain enough to be named in a message (the material keys are all so).
 _PLAIN_KEY = re.compile(r"[A-Za-z_][A-Za-z0-9_-]{0,19}")
@@ -371,7 +370,7 @@ def _text(value, where):
 def _number(value, where):
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
         hint = ""
-        if isinstance(value, str) and re.fullmatch(_NUMBER, value.strip()):
+        if isinstance(value, str) and re.fullmatch(NUMBER_PATTERN, value.strip()):
             hint = " (YAML read it as text: do not quote numbers)"
         raise _Invalid(where, f"expected a finite number, got {_rejected_number(value)}{hint}")
     return float(value)

@@ -30,8 +30,10 @@ import numpy as np
 
 from linkbudget.physics.validity import ValidityWarning
 
+#: The linear polarizations whose powers are computed (and followed through a chain) separately.
+LINEAR_POLARIZATIONS = ("s", "p")
 #: Polarization names accepted by the power functions, and the linear polarizations averaged.
-POLARIZATIONS = {"s": ("s",), "p": ("p",), "unpolarized": ("s", "p")}
+POLARIZATIONS = {"s": ("s",), "p": ("p",), "unpolarized": LINEAR_POLARIZATIONS}
 
 # Below this size the imaginary part of N·cos θ is rounding, not decay; the forward wave is
 # then chosen by the sign of Re(N·cos θ). The same threshold as the reference library `tmm`
@@ -78,7 +80,7 @@ def _validated_angle(angle_rad):
 
 def _polarization_components(polarization, *, allow_unpolarized=True):
     """Linear polarizations to compute (and average) for a polarization name."""
-    allowed = POLARIZATIONS if allow_unpolarized else {"s": ("s",), "p": ("p",)}
+    allowed = POLARIZATIONS if allow_unpolarized else {pol: (pol,) for pol in LINEAR_POLARIZATIONS}
     if polarization not in allowed:
         raise ValueError(f"polarization must be one of {sorted(allowed)}, got {polarization!r}")
     return allowed[polarization]

@@ -3,7 +3,7 @@
 import numpy as np
 
 from linkbudget.report.summary import (
-    fixed,
+    db_text,
     margin_sentence,
     nm,
     overload_sentence,
@@ -48,10 +48,6 @@ def shown_wavelengths(result, limit=MARKDOWN_MAX_WAVELENGTHS):
     return sorted(kept)
 
 
-def _cell(value):
-    return "blocked" if value == float("inf") else fixed(value)
-
-
 def _table(headers, rows, *, text_columns=1):
     """A Markdown table: the first ``text_columns`` left-aligned, the numbers right-aligned."""
     rule = "|".join("---" if i < text_columns else "---:" for i in range(len(headers)))
@@ -73,8 +69,9 @@ def render(result):
              f"Budget at {nm(result.wavelength_m[index])}:", ""]
     lines += _table(
         ["segment", "kind", "loss typ dB", "loss worst dB", "cumulative worst dB", "power after worst dBm", "note"],
-        [[markdown_text(row.name), row.shown_kind, _cell(result.loss_db["typ"][n, index]), _cell(result.loss_db["worst"][n, index]),
-          _cell(result.cumulative_loss_db["worst"][n, index]), _cell(result.power_after_dbm["worst"][n, index]),
+        [[markdown_text(row.name), row.shown_kind, db_text(result.loss_db["typ"][n, index]),
+          db_text(result.loss_db["worst"][n, index]), db_text(result.cumulative_loss_db["worst"][n, index]),
+          db_text(result.power_after_dbm["worst"][n, index]),
           markdown_text(row_note(row, index))]
          for n, row in enumerate(result.rows)], text_columns=2)
     shown = shown_wavelengths(result)
@@ -85,8 +82,8 @@ def render(result):
                   "every wavelength.", ""]
     lines += _table(
         ["wavelength", "received typ dBm", "received worst dBm", "margin typ dB", "margin worst dB", "status"],
-        [[nm(wavelength), _cell(result.received_dbm["typ"][i]), _cell(result.received_dbm["worst"][i]),
-          _cell(result.margin_db["typ"][i]), _cell(result.margin_db["worst"][i]), str(status[i])]
+        [[nm(wavelength), db_text(result.received_dbm["typ"][i]), db_text(result.received_dbm["worst"][i]),
+          db_text(result.margin_db["typ"][i]), db_text(result.margin_db["worst"][i]), str(status[i])]
          for i, wavelength in ((i, result.wavelength_m[i]) for i in shown)])
     lines += [""] + [f"- note: {markdown_text(note)}" for note in result.notes]
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]

@@ -1,5 +1,7 @@
 """The budget's verdict in words, shared by every human-readable format."""
 
+import math
+
 import numpy as np
 
 from linkbudget.text import escaped
@@ -9,6 +11,17 @@ def fixed(value, places=2, signed=False):
     """``value`` with ``places`` decimals; a value that rounds to zero prints as 0.00, never -0.00."""
     value = round(float(value), places) + 0.0  # adding 0.0 turns -0.0 into 0.0
     return f"{value:+.{places}f}" if signed else f"{value:.{places}f}"
+
+
+def db_text(value, signed=False):
+    """A budget number [dB or dBm] as every human-readable format prints it: :func:`fixed`, and
+    ``blocked`` for the +inf loss of total internal reflection (and the powers after it)."""
+    value = float(value)
+    if math.isnan(value):
+        return "n/a"
+    if math.isinf(value):
+        return "blocked" if value > 0 else "-inf"
+    return fixed(value, signed=signed)
 
 #: Resolution of every printed and JSON wavelength [nm]: values closer than this print alike.
 WAVELENGTH_RESOLUTION_NM = 1e-6

@@ -4,7 +4,6 @@ Colour is an aid only: every status is also written out. User text is always put
 :class:`rich.text.Text` (never read as console markup) after :func:`linkbudget.text.escaped`.
 """
 
-import math
 
 from rich import box
 from rich.console import Group
@@ -13,7 +12,7 @@ from rich.table import Table
 from rich.text import Text
 
 from linkbudget.report.summary import (
-    fixed,
+    db_text,
     margin_sentence,
     nm,
     overload_sentence,
@@ -26,14 +25,6 @@ from linkbudget.text import escaped
 
 #: Wavelengths listed one by one in the margin table; longer axes list the tightest ones.
 MAX_LISTED_WAVELENGTHS = 8
-
-
-def _db(value, signed=False):
-    if math.isnan(value):
-        return "n/a"
-    if math.isinf(value):
-        return "blocked" if value > 0 else "-inf"
-    return fixed(value, signed=signed)
 
 
 def _name_cell(row, index):
@@ -55,15 +46,15 @@ def budget_table(result, index):
     table.add_column("kind", min_width=9, no_wrap=True)
     for header in ("loss\ntyp", "loss\nworst", "total\nworst", "power\ntyp", "power\nworst"):
         table.add_column(header, justify="right", no_wrap=True)
-    table.add_row("", "source", "", "", "", "", _db(result.source_dbm["typ"][index], True),
-                  _db(result.source_dbm["worst"][index], True))
+    table.add_row("", "source", "", "", "", "", db_text(result.source_dbm["typ"][index], True),
+                  db_text(result.source_dbm["worst"][index], True))
     for number, row in enumerate(result.rows):
         table.add_row(
             str(number + 1), _name_cell(row, index), row.shown_kind,
-            _db(result.loss_db["typ"][number, index]), _db(result.loss_db["worst"][number, index]),
-            _db(result.cumulative_loss_db["worst"][number, index]),
-            _db(result.power_after_dbm["typ"][number, index], True),
-            _db(result.power_after_dbm["worst"][number, index], True),
+            db_text(result.loss_db["typ"][number, index]), db_text(result.loss_db["worst"][number, index]),
+            db_text(result.cumulative_loss_db["worst"][number, index]),
+            db_text(result.power_after_dbm["typ"][number, index], True),
+            db_text(result.power_after_dbm["worst"][number, index], True),
         )
     return table
 
@@ -80,9 +71,9 @@ def margin_table(result):
         worst = result.margin_db["worst"][index]
         ok = status[index] == "ok"
         table.add_row(
-            nm(result.wavelength_m[index]), _db(result.received_dbm["typ"][index], True),
-            _db(result.received_dbm["worst"][index], True), _db(result.received_dbm["best"][index], True),
-            _db(result.margin_db["typ"][index], True), _db(worst, True),
+            nm(result.wavelength_m[index]), db_text(result.received_dbm["typ"][index], True),
+            db_text(result.received_dbm["worst"][index], True), db_text(result.received_dbm["best"][index], True),
+            db_text(result.margin_db["typ"][index], True), db_text(worst, True),
             Text(str(status[index]), style="green" if ok else "bold red"),
         )
     if result.wavelength_m.size > MAX_LISTED_WAVELENGTHS:

@@ -15,10 +15,12 @@ from linkbudget.config.ranges import RANGES, index_notes
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, covering_hint, load_material
 from linkbudget.paths import PathRefused
+from linkbudget.physics.fresnel import POLARIZATIONS
 from linkbudget.segments.base import SegmentSpec
 from linkbudget.segments.roles import GUIDES, Carries
 
-Polarization = Literal["s", "p", "unpolarized"]
+#: The polarizations a segment may state for the light arriving at it.
+Polarization = Literal[tuple(POLARIZATIONS)]
 
 
 def resolve_index(index, material, wavelength_m, files, key_path=()):

@@ -11,11 +11,12 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from linkbudget.physics.decibel import loss_db_from_transmittance
+from linkbudget.physics.fresnel import LINEAR_POLARIZATIONS
 
 #: The kinds of row.
 ROW_KINDS = ("segment", "interface", "coating", "reflections")
 #: The linear polarizations whose powers are followed separately through every face.
-POLARIZATIONS = ("s", "p")
+POLARIZATIONS = LINEAR_POLARIZATIONS
 
 
 @dataclass(frozen=True)

@@ -19,9 +19,9 @@ from linkbudget.config.fields import InputProblem, integer
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
 from linkbudget.segments.base import NOTHING_AROUND, ExcessLossSpread, SegmentSpec, flat_over_wavelength
+from linkbudget.units import NUMBER_PATTERN
 
-_NUMBER = r"[-+]?(\d+(\.\d*)?|\.\d+)([eE][-+]?\d+)?"
-_RATIO = re.compile(rf"^\s*(?P<a>{_NUMBER})\s*(/\s*(?P<b>{_NUMBER})\s*)?$")
+_RATIO = re.compile(rf"^\s*(?P<a>{NUMBER_PATTERN})\s*(/\s*(?P<b>{NUMBER_PATTERN})\s*)?$", re.ASCII)
 
 _RATIO_FORMS = "a/b such as 2/98 (shares of the two ports) or a power fraction such as 0.02"
 
