@@ -181,8 +181,10 @@ RANGES = {range_.what: range_ for range_ in (
     Range("numerical aperture", "`fiber.numerical_aperture`", 0.0, 1.0, "",
           "the sine of the acceptance half-angle in air: > 0 and at most 1, and below the core index "
           "when the fibre gives one", low_open=True),
-    Range("beam waist", "`gap.beam.waist`", 0.05e-6, 1.0, "mm",
-          f"{_COMMON}: a waist radius is at least a twentieth of the wavelength, and 1 m is past any beam"),
+    Range("beam waist diameter", "`gap.beam.waist_diameter`", 0.1e-6, 2.0, "mm",
+          f"{_COMMON}: a waist diameter is at least a tenth of the wavelength, and 2 m is past any beam"),
+    Range("beam waist", "`gap.beam.waist` (a radius, read for this release: write `waist_diameter`)",
+          0.05e-6, 1.0, "mm", f"{_COMMON}: half the waist diameter's range"),
     Range("beam divergence", "`gap.beam.divergence`", 0.0, math.pi / 2, "deg",
           "a half-angle of 90 deg or more leaves no forward beam", low_open=True, high_open=True,
           unusual=(Unusual(math.radians(15.0), True, "beyond the paraxial Gaussian beam model "

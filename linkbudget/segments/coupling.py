@@ -192,15 +192,15 @@ def _mode_candidates(mode, other):
             (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
 
 
-def aperture_losses_db(wavelength_m, launched, cases, *, distance, aperture_diameter, n=1.0):
+def aperture_losses_db(wavelength_m, launched, cases, *, separation, aperture_diameter, n=1.0):
     """Loss per case of the power falling outside a circular aperture after a free-space path.
 
-    The launched beam has its waist (``launched`` mode radii) at the start; after ``distance`` its
-    radius is w(z) (:func:`linkbudget.physics.gaussian.spot_radius_m`), and the aperture of
+    The launched beam has its waist (``launched`` mode radii) at the start; after the axial
+    ``separation`` z its radius is w(z) (:func:`linkbudget.physics.gaussian.spot_radius_m`), and the aperture of
     radius a passes T = 1 − exp(−2a²/w²) (:func:`linkbudget.physics.gaussian.aperture_transmission`).
     An elliptical beam is taken at its larger radius (conservative for the margin). Worst and best
-    cases search the corners of the waist, distance and aperture spreads, and the waist
-    w0* = √(λz/(π·n)) that spreads least over the distance z, clipped into the waist's range;
+    cases search the corners of the waist, separation and aperture spreads, and the waist
+    w0* = √(λz/(π·n)) that spreads least over the separation z, clipped into the waist's range;
     draws evaluate their own values.
 
     References
@@ -208,23 +208,23 @@ def aperture_losses_db(wavelength_m, launched, cases, *, distance, aperture_diam
     .. [1] A. E. Siegman, "Lasers", University Science Books, 1986 (Gaussian beam propagation and
        the power through a circular aperture).
     """
-    def transmittance(waist_m, distance_m, diameter_m):
-        spot_m = gaussian.spot_radius_m(waist_m, distance_m, wavelength_m, n=n)
+    def transmittance(waist_m, separation_m, diameter_m):
+        spot_m = gaussian.spot_radius_m(waist_m, separation_m, wavelength_m, n=n)
         return gaussian.aperture_transmission(diameter_m / 2, spot_m)
 
     def typical_at(case):
         waist_m = np.maximum(launched.x.at(case), launched.y.at(case))
-        return transmittance(waist_m, case.value(distance), case.value(aperture_diameter))
+        return transmittance(waist_m, case.value(separation), case.value(aperture_diameter))
 
     def search():
         (x_low, x_high), (y_low, y_high) = launched.x.ends(), launched.y.ends()
         waist_low, waist_high = np.maximum(x_low, y_low), np.maximum(x_high, y_high)
 
-        def waist_candidates(distance_m):
-            least_spread = np.sqrt(wavelength_m * distance_m / (np.pi * n))  # minimises w(z) (Siegman)
+        def waist_candidates(separation_m):
+            least_spread = np.sqrt(wavelength_m * separation_m / (np.pi * n))  # minimises w(z) (Siegman)
             return (waist_low, waist_high, np.clip(least_spread, waist_low, waist_high))
 
-        corners = [transmittance(w, z, a) for z, a in itertools.product(_ends(distance), _ends(aperture_diameter))
+        corners = [transmittance(w, z, a) for z, a in itertools.product(_ends(separation), _ends(aperture_diameter))
                    for w in waist_candidates(z)]
         return np.min(corners, axis=0), np.max(corners, axis=0)
 

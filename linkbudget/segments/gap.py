@@ -42,23 +42,43 @@ VISIBILITY_MODELS = {
 
 
 class Beam(Strict):
-    """The beam launched into a gap: its ``waist`` radius at the gap's start (1/e² intensity), or
-    the far-field ``divergence`` half-angle of a collimated source (its waist is then λ/(π·n·θ))."""
+    """The beam launched into a gap: its ``waist_diameter`` at the gap's start (1/e² intensity, a
+    diameter like every size in a link), or the far-field ``divergence`` half-angle of a
+    collimated source (its waist radius is then λ/(π·n·θ)). ``waist``, a radius, is the spelling of
+    earlier releases, read for this one with a note."""
 
+    waist_diameter: length_spread("beam waist diameter") | None = None
     waist: length_spread("beam waist") | None = None
     divergence: spread("angle", bounds=RANGES["beam divergence"]) | None = None
 
     @model_validator(mode="after")
     def _one(self):
-        if (self.waist is None) == (self.divergence is None):
-            raise InputProblem((), "give the beam's waist or its divergence")
+        given = [key for key in ("waist_diameter", "waist", "divergence") if getattr(self, key) is not None]
+        if len(given) != 1:
+            raise InputProblem(() if not given else (given[-1],),
+                               "give the beam's waist_diameter or its divergence, one of them")
         return self
 
+    def notes(self):
+        """The note on the old spelling ``waist`` (a radius), if used."""
+        if self.waist is None:
+            return []
+        return [f"beam.waist is a radius, read as such in this release; write waist_diameter: "
+                f"{2 * self.waist.typ_value * 1e3:g} mm (twice it), as every other size in a link is a diameter"]
+
+    def waist_diameter_low_m(self):
+        """The smallest waist diameter written [m], or ``None`` for a beam given by its divergence."""
+        if self.waist_diameter is not None:
+            return self.waist_diameter.low
+        return None if self.waist is None else 2 * self.waist.low
+
     def mode(self, wavelength_m, n):
-        """The launched beam as a circular :class:`Mode`: its waist radius, or the waist
+        """The launched beam as a circular :class:`Mode`: half its waist diameter, or the waist
         λ/(π·n·θ) of its divergence θ (:func:`linkbudget.physics.gaussian.waist_from_divergence_m`)."""
+        ones = np.ones(np.shape(wavelength_m))
+        if self.waist_diameter is not None:
+            return Mode.circular(ModeAxis(self.waist_diameter, lambda diameter_m: diameter_m / 2 * ones))
         if self.waist is not None:
-            ones = np.ones(np.shape(wavelength_m))
             return Mode.circular(ModeAxis(self.waist, lambda radius_m: radius_m * ones))
         return Mode.circular(ModeAxis(self.divergence,
                                       lambda angle_rad: gaussian.waist_from_divergence_m(angle_rad, wavelength_m, n=n)))
@@ -89,10 +109,11 @@ class Gap(Bulk):
         return self
 
     def resolve(self, wavelength_m, files):
-        waist = None if self.beam is None else self.beam.waist
-        message = None if waist is None else mode_size_problem(2 * waist.low, wavelength_m)
+        diameter_m = None if self.beam is None else self.beam.waist_diameter_low_m()
+        message = None if diameter_m is None else mode_size_problem(diameter_m, wavelength_m)
         if message is not None:
-            raise InputProblem(("beam", "waist"), f"the beam's waist is a radius, half its diameter: {message}")
+            key = "waist_diameter" if self.beam.waist_diameter is not None else "waist"
+            raise InputProblem(("beam", key), f"the beam's waist diameter: {message}")
         if self.index is None and self.material is None:
             try:
                 return self.model_copy(update={"material": "air"}).resolve(wavelength_m, files)
@@ -103,6 +124,9 @@ class Gap(Bulk):
                 raise InputProblem((), f"no `material` or `index` written, so the gap holds air (the default); "
                                        f"{problem}", problem.hint) from None
         return super().resolve(wavelength_m, files)
+
+    def input_notes(self):
+        return super().input_notes() + ([] if self.beam is None else self.beam.notes())
 
     def path_length_m(self, case):
         return case.value(self.length)
@@ -128,7 +152,7 @@ class Gap(Bulk):
         if launched is None:
             return None
         if self.aperture is not None:
-            return aperture_losses_db(wavelength_m, launched, cases, distance=self.length,
+            return aperture_losses_db(wavelength_m, launched, cases, separation=self.length,
                                       aperture_diameter=self.aperture, n=n)
         if around.mode_after is None:
             return None
