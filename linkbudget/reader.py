@@ -106,18 +106,15 @@ class LinkFiles:
         The link's folder, which a written path starts from.
     sources : dict
         ``written path -> Source`` of every file read so far.
-    last_asked : str or None
-        The written path asked for last, so an error in its file can be placed at the key naming it.
     """
 
     reader: object
     folder: object = "."
     sources: dict = field(default_factory=dict)
-    last_asked: str | None = None
 
     def read(self, written):
         """The :class:`Source` of the path ``written`` in the link, read once per path."""
-        key = self.last_asked = str(written)
+        key = str(written)
         if key not in self.sources:
             self.sources[key] = self.reader.read(key, self.folder)
         return self.sources[key]

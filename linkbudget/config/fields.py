@@ -34,10 +34,11 @@ class InputProblem(ValueError):
     so the message points at the key that is wrong rather than at its parent.
     """
 
-    def __init__(self, key_path, message, hint=None):
+    def __init__(self, key_path, message, hint=None, cause=None):
         super().__init__(message)
         self.key_path = tuple(key_path)
         self.hint = hint
+        self.cause = cause  # a placed Problem in another file (a material file) this one refers to
 
 
 class Strict(BaseModel):

@@ -144,28 +144,6 @@ def _validate_segment(item, index, positions):
     return segment, []
 
 
-def _referring_path(data, path, written):
-    """The key path below ``path`` in ``data`` whose value is the text ``written`` (first found), else ``path``."""
-    node = data
-    for part in path:
-        node = node[part]
-    items = node.items() if isinstance(node, dict) else enumerate(node) if isinstance(node, list) else ()
-    for key, value in items:
-        if value == written:
-            return (*path, key)
-        found = _referring_path(data, (*path, key), written)
-        if found != (*path, key):
-            return found
-    return path
-
-
-def _referred_problem(error, data, positions, path, files):
-    """A problem in a file the segment at ``path`` refers to, placed at the referring key, with the file's
-    own placed problem as its second line."""
-    where = path if files.last_asked is None else _referring_path(data, path, files.last_asked)
-    return replace(positions.problem(where, "the file named here has an error:"), cause=error.problems[0])
-
-
 def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=None):
     """Validate link text and return a :class:`Link`.
 
@@ -209,14 +187,11 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
         if segment is None:
             continue
         if spec is not None:
-            files.last_asked = None
             try:
                 segment = segment.resolve(wavelength_m, files)
             except InputProblem as problem:
-                problems.append(positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint))
-                continue
-            except ConfigError as error:  # in a file the segment refers to
-                problems.append(_referred_problem(error, data, positions, ("chain", index), files))
+                placed = positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
+                problems.append(replace(placed, cause=problem.cause))
                 continue
         if segment.name in seen:
             problems.append(positions.problem(

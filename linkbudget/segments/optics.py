@@ -12,6 +12,7 @@ from pydantic import PrivateAttr, model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, quantity
 from linkbudget.config.ranges import RANGES, index_notes
+from linkbudget.config.source import ConfigError
 from linkbudget.materials.dispersion import MaterialRangeError
 from linkbudget.materials.library import MaterialError, covering_hint, load_material
 from linkbudget.paths import PathRefused
@@ -43,6 +44,9 @@ def resolve_index(index, material, wavelength_m, files, key_path=()):
                              "`linkbudget materials` lists the catalog") from None
     except PathRefused as error:
         raise InputProblem((*key_path, "material"), str(error), error.hint) from None
+    except ConfigError as error:  # placed in the material file (unreadable, malformed): its first problem is the cause
+        raise InputProblem((*key_path, "material"), "the file named here has an error:",
+                           cause=error.problems[0]) from None
 
 
 class OpticalSegment(SegmentSpec):
