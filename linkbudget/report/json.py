@@ -60,12 +60,9 @@ def _number_list(values, decimals):
         rounded = np.rint(scaled) / scale + 0.0
         distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
         unsure = ~(distance_from_half > 2 * np.spacing(np.abs(scaled))) | ~(np.abs(scaled) < 2.0**52)
-    finite = np.isfinite(values)
     numbers = rounded.tolist()
-    for index in np.flatnonzero(unsure & finite).tolist():
-        numbers[index] = round(float(values[index]), decimals) + 0.0
-    for index in np.flatnonzero(~finite).tolist():
-        numbers[index] = None
+    for index in np.flatnonzero(unsure).tolist():  # non-finite values too: their comparisons are false
+        numbers[index] = _number(float(values[index]), decimals)
     return numbers
 
 
@@ -74,7 +71,7 @@ class _Numbers:
 
     __slots__ = ("decimals", "values")
 
-    def __init__(self, values, decimals):
+    def __init__(self, values, decimals=DB_RESOLUTION_DECIMALS):
         self.values = np.asarray(values, dtype=float).ravel()
         self.decimals = decimals
 
@@ -86,19 +83,15 @@ class _Numbers:
             yield _number_list(self.values[start:start + SLICE_NUMBERS], self.decimals)
 
 
-def _numbers(values, decimals=DB_RESOLUTION_DECIMALS):
-    return _Numbers(values, decimals)
-
-
 def _by_case(arrays, index=None):
-    return {case: _numbers(arrays[case] if index is None else arrays[case][index]) for case in CASES}
+    return {case: _Numbers(arrays[case] if index is None else arrays[case][index]) for case in CASES}
 
 
 def _detail(value, decimals=DB_RESOLUTION_DECIMALS):
     if isinstance(value, dict):
         return {key: _detail(item, decimals) for key, item in value.items()}
     if isinstance(value, np.ndarray):
-        return _numbers(value, decimals)
+        return _Numbers(value, decimals)
     if isinstance(value, float):
         return _number(value, decimals)
     return value
@@ -133,7 +126,7 @@ def _document(result):
         "title": result.title,
         "description": result.description,
         "file": result.file,
-        "wavelengths_nm": _numbers(result.wavelength_m * 1e9, WAVELENGTH_RESOLUTION_DECIMALS),
+        "wavelengths_nm": _Numbers(result.wavelength_m * 1e9, WAVELENGTH_RESOLUTION_DECIMALS),
         "source": {"name": result.source_name},
         "source_dbm": _by_case(result.source_dbm),
         "receiver": {
@@ -169,11 +162,6 @@ def _plain(value):
 def result_dict(result):
     """The whole result as plain JSON-ready data."""
     return _plain(_document(result))
-
-
-def segment_dict(result, index):
-    """The JSON object of one budget row."""
-    return _plain(_segment_document(result, index))
 
 
 def json_chunks(result):
