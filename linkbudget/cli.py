@@ -102,13 +102,12 @@ def _root(
 
 
 def _report_text(result, output_format):
-    """The report as text in one of the file formats (terminal output as plain text)."""
+    """The report in one of the file formats (terminal output as plain text): a string, or for
+    JSON an iterator of its pieces, so that a large sweep is streamed, never one string."""
     if output_format is Format.json:
-        import json
+        from linkbudget.report.json import json_chunks
 
-        from linkbudget.report.json import result_dict
-
-        return json.dumps(result_dict(result), indent=2) + "\n"
+        return json_chunks(result)
     if output_format is Format.markdown:
         from linkbudget.report.markdown import render
 
@@ -160,7 +159,7 @@ def _emit(result, output_format, output, force, protected):
         return
     text = _report_text(result, output_format)
     if output is None:
-        sys.stdout.write(text)
+        sys.stdout.writelines([text] if isinstance(text, str) else text)
         return
     from linkbudget.report.output import OutputError, write_atomic
 

@@ -5,8 +5,13 @@ value is a list over ``wavelengths_nm``; every budget quantity is an object keye
 (``typ``, ``worst``, ``best``). Numbers are rounded to a fixed resolution so that a result
 diffs cleanly (:data:`DB_RESOLUTION_DECIMALS`, :data:`WAVELENGTH_RESOLUTION_DECIMALS`). A null
 stands only where total internal reflection blocks the light (see ``total_internal_reflection``).
+
+The result is built once as a document whose per-wavelength lists are still arrays
+(:class:`_Numbers`): :func:`result_dict` turns them into plain lists, :func:`json_chunks` writes
+them slice by slice, so a sweep of 100,000 wavelengths is never one string in memory.
 """
 
+import json
 import math
 
 import numpy as np
@@ -23,25 +28,72 @@ FRACTION_RESOLUTION_DECIMALS = 12
 #: Decimals of every wavelength written in nm (1e-6 nm, as printed).
 WAVELENGTH_RESOLUTION_DECIMALS = 6
 
+#: Numbers converted and written at a time: bounds the memory of writing a long list.
+SLICE_NUMBERS = 65_536
 
-def _numbers(values, decimals=DB_RESOLUTION_DECIMALS):
-    """Finite values rounded to ``decimals`` (no float noise such as ``1550.0000000000002``,
-    no ``-0.0``); ``None`` for a value that is not finite."""
-    return [round(value, decimals) + 0.0 if math.isfinite(value) else None
-            for value in np.asarray(values, dtype=float).ravel().tolist()]
+#: Lists up to this length are rounded value by value (see :func:`_number_list`).
+_SHORT_LIST = 32
+
+#: Indentation of the written JSON (that of ``json.dumps(..., indent=2)``).
+_INDENT = "  "
+
+
+def _number(value, decimals):
+    """A finite value rounded to ``decimals`` (no float noise such as ``1550.0000000000002``, no
+    ``-0.0``); ``None`` for a value that is not finite."""
+    return round(value, decimals) + 0.0 if math.isfinite(value) else None
+
+
+def _number_list(values, decimals):
+    """:func:`_number` of each of ``values`` (a float array), vectorised.
+
+    ``rint(x·10^d)/10^d`` is Python's ``round(x, d)`` (the exact binary value rounded half to
+    even, then the nearest double) except where the product's own rounding may cross a half;
+    those few values, and any too large for the product, take :func:`round` itself; so do lists
+    of up to :data:`_SHORT_LIST` values, where numpy's calls cost more than they save.
+    """
+    if values.size <= _SHORT_LIST:
+        return [_number(value, decimals) for value in values.tolist()]
+    scale = 10.0 ** decimals
+    with np.errstate(invalid="ignore", over="ignore"):
+        scaled = values * scale
+        rounded = np.rint(scaled) / scale + 0.0
+        distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
+        unsure = ~(distance_from_half > 2 * np.spacing(np.abs(scaled))) | ~(np.abs(scaled) < 2.0**52)
+    numbers = rounded.tolist()
+    for index in np.flatnonzero(unsure).tolist():  # non-finite values too: their comparisons are false
+        numbers[index] = _number(float(values[index]), decimals)
+    return numbers
+
+
+class _Numbers:
+    """A per-wavelength list of the document, kept as an array until it is written."""
+
+    __slots__ = ("decimals", "values")
+
+    def __init__(self, values, decimals=DB_RESOLUTION_DECIMALS):
+        self.values = np.asarray(values, dtype=float).ravel()
+        self.decimals = decimals
+
+    def plain(self):
+        return _number_list(self.values, self.decimals)
+
+    def slices(self):
+        for start in range(0, self.values.size, SLICE_NUMBERS):
+            yield _number_list(self.values[start:start + SLICE_NUMBERS], self.decimals)
 
 
 def _by_case(arrays, index=None):
-    return {case: _numbers(arrays[case] if index is None else arrays[case][index]) for case in CASES}
+    return {case: _Numbers(arrays[case] if index is None else arrays[case][index]) for case in CASES}
 
 
 def _values(value, decimals=DB_RESOLUTION_DECIMALS):
-    """A row's typed value as JSON: a mapping (by case, part or polarization) of arrays, or ``None``."""
+    """A row's typed value: a mapping (by case, part or polarization) of arrays, or ``None``."""
     if value is None:
         return None
     if isinstance(value, dict):
         return {key: _values(item, decimals) for key, item in value.items()}
-    return _numbers(value, decimals)
+    return _Numbers(value, decimals)
 
 
 def _present(fields):
@@ -49,8 +101,8 @@ def _present(fields):
     return {key: value for key, value in fields.items() if value}
 
 
-def row_dict(result, index):
-    """The JSON object of one budget row."""
+def _row_document(result, index):
+    """The entry of one budget row (the one place that reads a row)."""
     row = result.rows[index]
     return {
         "id": row.id,
@@ -67,13 +119,13 @@ def row_dict(result, index):
                     "polarization_share": _values(row.polarization_share, FRACTION_RESOLUTION_DECIMALS),
                     "absorptance": _values(row.absorptance, FRACTION_RESOLUTION_DECIMALS),
                     "facts": list(row.facts), "notes": list(row.notes)}),
-        **({"total_internal_reflection": [bool(value) for value in result.total_internal_reflection[index]]}
+        **({"total_internal_reflection": result.total_internal_reflection[index].tolist()}
            if result.total_internal_reflection[index].any() else {}),
     }
 
 
-def result_dict(result):
-    """The whole result as plain JSON-ready data."""
+def _document(result):
+    """The whole result, its per-wavelength lists still as :class:`_Numbers`."""
     governing = result.governing_index
     return {
         "schema": SCHEMA,
@@ -81,23 +133,78 @@ def result_dict(result):
         "title": result.title,
         "description": result.description,
         "file": result.file,
-        "wavelengths_nm": _numbers(result.wavelength_m * 1e9, WAVELENGTH_RESOLUTION_DECIMALS),
+        "wavelengths_nm": _Numbers(result.wavelength_m * 1e9, WAVELENGTH_RESOLUTION_DECIMALS),
         "source": {"name": result.source_name},
         "source_dbm": _by_case(result.source_dbm),
         "receiver": {
             "name": result.receiver_name,
-            "sensitivity_dbm": _numbers([result.sensitivity_dbm])[0],
-            "overload_dbm": None if result.overload_dbm is None else _numbers([result.overload_dbm])[0],
-            "required_margin_db": _numbers([result.required_margin_db])[0],
+            "sensitivity_dbm": _number(result.sensitivity_dbm, DB_RESOLUTION_DECIMALS),
+            "overload_dbm": (None if result.overload_dbm is None
+                             else _number(result.overload_dbm, DB_RESOLUTION_DECIMALS)),
+            "required_margin_db": _number(result.required_margin_db, DB_RESOLUTION_DECIMALS),
         },
-        "rows": [row_dict(result, index) for index in range(len(result.rows))],
+        "rows": [_row_document(result, index) for index in range(len(result.rows))],
         "total_loss_db": _by_case({case: losses[-1] for case, losses in result.cumulative_loss_db.items()}),
         "received_dbm": _by_case(result.received_dbm),
         "margin_db": _by_case(result.margin_db),
-        "governing_wavelength_nm": _numbers(result.wavelength_m[governing] * 1e9, WAVELENGTH_RESOLUTION_DECIMALS)[0],
+        "governing_wavelength_nm": _number(float(result.wavelength_m[governing] * 1e9),
+                                           WAVELENGTH_RESOLUTION_DECIMALS),
         "margin_ok": result.margin_ok,
         "overload_ok": result.overload_ok,
         "closes": result.closes,
         "notes": list(result.notes),
         "cautions": list(result.cautions),
     }
+
+
+def _plain(value):
+    if isinstance(value, _Numbers):
+        return value.plain()
+    if isinstance(value, dict):
+        return {key: _plain(item) for key, item in value.items()}
+    if isinstance(value, list):
+        return [_plain(item) for item in value]
+    return value
+
+
+def result_dict(result):
+    """The whole result as plain JSON-ready data."""
+    return _plain(_document(result))
+
+
+def json_chunks(result):
+    """The JSON text of the result in pieces, in order: together they are exactly
+    ``json.dumps(result_dict(result), indent=2) + "\\n"``, but no piece holds more than
+    :data:`SLICE_NUMBERS` numbers."""
+    yield from _encoded(_document(result), 0)
+    yield "\n"
+
+
+def _encoded(value, depth):
+    """Pieces of ``value`` as ``json.dumps(value, indent=2)`` writes it at nesting ``depth``."""
+    if isinstance(value, _Numbers):
+        yield from _encoded_numbers(value, depth)
+        return
+    if not isinstance(value, dict | list) or not value:
+        yield json.dumps(value)
+        return
+    inner = "\n" + _INDENT * (depth + 1)
+    is_dict = isinstance(value, dict)
+    yield "{" if is_dict else "["
+    for position, (key, item) in enumerate(value.items() if is_dict else enumerate(value)):
+        yield ("," if position else "") + inner + (json.dumps(key) + ": " if is_dict else "")
+        yield from _encoded(item, depth + 1)
+    yield "\n" + _INDENT * depth + ("}" if is_dict else "]")
+
+
+def _encoded_numbers(numbers, depth):
+    """A number list, one number a line as ``indent=2`` writes it: each slice goes through the
+    compact C encoder (the same float repr) and gets its line breaks by one replacement."""
+    if not numbers.values.size:
+        yield "[]"
+        return
+    inner = "\n" + _INDENT * (depth + 1)
+    separator = "," + inner
+    for position, part in enumerate(numbers.slices()):
+        yield (separator if position else "[" + inner) + json.dumps(part)[1:-1].replace(", ", separator)
+    yield "\n" + _INDENT * depth + "]"

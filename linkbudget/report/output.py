@@ -40,8 +40,9 @@ def write_atomic(path, text, *, overwrite=False, protected=()):
     ----------
     path : path-like
         Destination file.
-    text : str
-        Content (UTF-8).
+    text : str or iterable of str
+        Content (UTF-8), whole or in pieces written as they come (a large JSON result is never
+        one string); the file takes the destination's name only once every piece is written.
     overwrite : bool
         Replace an existing file or symlink; without it any existing entry is an error.
     protected : iterable of path-like
@@ -54,12 +55,12 @@ def write_atomic(path, text, *, overwrite=False, protected=()):
     """
     path = Path(path)
     try:
-        _write(path, text.encode("utf-8"), overwrite, protected)
+        _write(path, [text] if isinstance(text, str) else text, overwrite, protected)
     except OSError as error:
         raise OutputError(f"{path}: cannot write: {error.strerror or error}") from None
 
 
-def _write(path, data, overwrite, protected):
+def _write(path, pieces, overwrite, protected):
     try:
         target = path.resolve()
     except RuntimeError:  # Python 3.11 reports a symlink loop so
@@ -85,7 +86,8 @@ def _write(path, data, overwrite, protected):
             with os.fdopen(descriptor, "wb") as stream:
                 if kept_mode is not None:
                     os.fchmod(stream.fileno(), kept_mode)
-                stream.write(data)
+                for piece in pieces:
+                    stream.write(piece.encode("utf-8"))
                 stream.flush()
                 os.fsync(stream.fileno())
             if overwrite:
