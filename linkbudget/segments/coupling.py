@@ -64,17 +64,35 @@ def _case_losses_db(cases, typical_at, search):
     return losses
 
 
-def _per_offset_axis(wavelength_m, before, after, offset_m, tilt_rad, separation_m, n):
-    """cos ψ -> (η with the offset along x, η with it along y), before/after as (x, y) radii."""
+def _per_offset_axis(wavelength_m, before, after, offset_m, tilt_rad, separation_m, n, *, circular=False):
+    """cos ψ -> (η with the offset along x, η with it along y), before/after as (x, y) radii; for
+    ``circular`` modes the two are equal and one is computed."""
     (before_x, before_y), (after_x, after_y) = before, after
     misalignment = dict(offset_m=offset_m, tilt_rad=tilt_rad, separation_m=separation_m, n=n)
 
     def at(cosine):
-        return (coupling_efficiency_tilt_azimuth(before_x, before_y, after_x, after_y, wavelength_m,
-                                                 azimuth_cosine=cosine, **misalignment),
-                coupling_efficiency_tilt_azimuth(before_y, before_x, after_y, after_x, wavelength_m,
-                                                 azimuth_cosine=cosine, **misalignment))
+        along_x = coupling_efficiency_tilt_azimuth(before_x, before_y, after_x, after_y, wavelength_m,
+                                                   azimuth_cosine=cosine, **misalignment)
+        if circular:
+            return (along_x,)
+        return (along_x, coupling_efficiency_tilt_azimuth(before_y, before_x, after_y, after_x, wavelength_m,
+                                                          azimuth_cosine=cosine, **misalignment))
     return at
+
+
+def _worse_axis(efficiencies):
+    """The smaller of the offset axes' efficiencies (the offset lies along the worse axis)."""
+    return efficiencies[0] if len(efficiencies) == 1 else np.minimum(*efficiencies)
+
+
+def _circular(mode):
+    """The mode has one axis for both (:meth:`~linkbudget.segments.base.Mode.circular`)."""
+    return mode.x is mode.y
+
+
+#: cos ψ of the two parallel turns, where the extremes over an unknown azimuth lie between
+#: circular modes (ln η is then linear in cos ψ, see :func:`_searched_cosines`).
+_PARALLEL_TURNS = np.array([[-1.0], [1.0]])
 
 
 def _searched_cosines(at):
@@ -154,8 +172,9 @@ def coupling_losses_db(wavelength_m, before, after, cases, *, offset=None, tilt=
         cosine = _azimuth_cosine(case, tilt, tilt_direction)
         at = _per_offset_axis(wavelength_m, (before.x.at(case), before.y.at(case)),
                               (after.x.at(case), after.y.at(case)),
-                              _value(case, offset), _value(case, tilt), _value(case, separation), n)
-        return np.minimum(*at(cosine))
+                              _value(case, offset), _value(case, tilt), _value(case, separation), n,
+                              circular=_circular(before) and _circular(after))
+        return _worse_axis(at(cosine))
 
     def search():
         return _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction)
@@ -167,29 +186,37 @@ def _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n,
     """(least, largest) coupling efficiency over the corners of the tolerance box and every
     azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks."""
     shape = np.shape(wavelength_m)
+    circular = _circular(before) and _circular(after)
     corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
                                      _ends(offset), _ends(tilt), _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
         (bx, by, ax, ay), (d, theta, gap) = _stacked(corners[start:start + per_chunk], shape)
-        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n)
-        cosines = (_searched_cosines(at) if tilt_direction is None
-                   else np.array([[TILT_DIRECTION_COSINES[tilt_direction]]]))
-        values = np.minimum(*at(cosines))  # (corner, azimuth, wavelength)
+        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n, circular=circular)
+        if tilt_direction is not None:
+            cosines = np.array([[TILT_DIRECTION_COSINES[tilt_direction]]])
+        else:
+            cosines = _PARALLEL_TURNS if circular else _searched_cosines(at)
+        values = _worse_axis(at(cosines))  # (corner, azimuth, wavelength)
         least.append(values.min(axis=(0, 1)))
         largest.append(values.max(axis=(0, 1)))
     return np.min(least, axis=0), np.max(largest, axis=0)
 
 
 def _mode_candidates(mode, other):
-    """(x, y) radii of ``mode`` to search: the ends of its range, and the ends of ``other``'s
-    clipped into its range (where the ranges overlap, equal sizes couple best)."""
+    """(x, y) radii of ``mode`` to search, each once: the ends of its range, and the ends of
+    ``other``'s clipped into its range (where the ranges overlap, equal sizes couple best)."""
     (x_low, x_high), (y_low, y_high) = mode.x.ends(), mode.y.ends()
     (other_x_low, other_x_high), (other_y_low, other_y_high) = other.x.ends(), other.y.ends()
-    return [(x_low, y_low), (x_high, y_high),
-            (np.clip(other_x_low, x_low, x_high), np.clip(other_y_low, y_low, y_high)),
-            (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
+    candidates = [(x_low, y_low), (x_high, y_high),
+                  (np.clip(other_x_low, x_low, x_high), np.clip(other_y_low, y_low, y_high)),
+                  (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
+    unique = []
+    for x, y in candidates:
+        if not any(np.array_equal(x, seen_x) and np.array_equal(y, seen_y) for seen_x, seen_y in unique):
+            unique.append((x, y))
+    return unique
 
 
 def aperture_losses_db(wavelength_m, launched, cases, *, separation, aperture_diameter, n=1.0):
