@@ -29,7 +29,7 @@ from linkbudget.physics.validity import ValidityWarning, span_text
 from linkbudget.segments.base import Around
 from linkbudget.segments.cases import CASES, CORNERS
 from linkbudget.segments.roles import Carries, Coats, Faces, Guides, Joint, Passes
-from linkbudget.segments.rows import POLARIZATIONS, Row
+from linkbudget.segments.rows import COATING_ROW, INTERFACE_ROW, POLARIZATIONS, REFLECTIONS_ROW, Row
 from linkbudget.text import length_text
 
 
@@ -240,7 +240,7 @@ def _face(up, down, origin, angle_rad, share, need_back):
         inside = fresnel.refraction_angle_rad(n_from, n_to, angle_rad)
         back = {pol: r for pol, (r, _) in _quietly(fresnel.interface_power_coefficients, n1=n_to, n2=n_from,
                                                    angle_rad=inside).items()}
-    row, share = _share_row(name, "interface", origin, share, {pol: t for pol, (_, t) in forward.items()},
+    row, share = _share_row(name, INTERFACE_ROW, origin, share, {pol: t for pol, (_, t) in forward.items()},
                             reflectance=reflectance)
     return [row], share, reflectance, back
 
@@ -260,7 +260,7 @@ def _coating(coating, coats, wavelength_m, n_up, n_down, angle_rad, share, need_
             angle_rad=fresnel.refraction_angle_rad(n_up, n_down, angle_rad)).items()}
     # 1 - R - T rounds to -1e-16 when lossless
     absorptance = {pol: np.maximum(response.absorptance, 0.0) for pol, response in forward.items()}
-    row, share = _share_row(coating.name, "coating", (coating.name,), share,
+    row, share = _share_row(coating.name, COATING_ROW, (coating.name,), share,
                             {pol: response.transmittance for pol, response in forward.items()},
                             segment_kind=coating.kind, reflectance=reflectance, absorptance=absorptance)
     return [row], share, reflectance, back
@@ -299,7 +299,7 @@ def _multiple_reflections_row(carrier, downstream, exit_reflectance, share):
         passed, after[case] = _pass(share[case], factor)
         losses[case] = loss_db_from_transmittance(passed)
     name = f"{carrier.side.name} multiple reflections"
-    return Row(name, "reflections", _origin(carrier.side.owner, downstream.owner), losses), after
+    return Row(name, REFLECTIONS_ROW, _origin(carrier.side.owner, downstream.owner), losses), after
 
 
 def _noted(notes, owner, function, *args):
@@ -308,7 +308,7 @@ def _noted(notes, owner, function, *args):
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", ValidityWarning)
         value = function(*args)
-    notes.extend((getattr(w.message, "owner", owner), str(w.message)) for w in caught
+    notes.extend((w.message.owner if isinstance(w.message, _RowNote) else owner, str(w.message)) for w in caught
                  if issubclass(w.category, ValidityWarning))
     return value
 
@@ -503,7 +503,7 @@ def _not_finite_problem(result, link):
     values = ", ".join(f"{case} {result.loss_db[case][number, index]:g} dB" for case in CASES)
     names = [segment.name for segment in link.segments]
     # an inserted face is placed at the segment after it; the light bouncing in a medium, at it
-    owner = row.origin[0] if row.kind == "reflections" else row.origin[-1]
+    owner = row.origin[0] if row.kind == REFLECTIONS_ROW else row.origin[-1]
     path = ("chain", names.index(owner))
     mark = None if link.positions is None else link.positions.mark(path)
     from linkbudget.report.summary import nm
@@ -538,7 +538,8 @@ def evaluate(link, *, required_margin_db=None):
     spec = link.spec
     wavelength_m = spec.wavelengths_m()
     rows, notes = budget_rows(link.segments, wavelength_m, spec.source.spectral_width)
-    notes = (*(f"{part}: {note}" for part in ("source", "receiver") for note in range_notes(getattr(spec, part))),
+    notes = (*(f"{part}: {note}" for part, model in (("source", spec.source), ("receiver", spec.receiver))
+             for note in range_notes(model)),
              *notes)
     power = spec.source.power
     source_dbm = {case.name: np.full(wavelength_m.shape, case.value(power, larger_hurts=False)) for case in CORNERS}

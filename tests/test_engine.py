@@ -124,3 +124,16 @@ def test_result_dict_minimum_contract():
     assert data["margin_db"]["worst"] == [18.0, 18.0]
     assert data["closes"] is True
     assert data["cautions"]
+
+
+def test_engine_holds_no_kind_names_class_flags_or_probes():
+    # the engine walks the chain by the segments' roles alone (linkbudget.segments.roles)
+    import inspect
+
+    from linkbudget import engine
+    from linkbudget.segments.registry import KINDS
+
+    source = inspect.getsource(engine)
+    assert not [kind for kind in KINDS if f'"{kind}"' in source or f"'{kind}'" in source]
+    for probe in ("getattr(", "hasattr(", "segment.kind ==", "ClassVar", "isinstance(segment"):
+        assert probe not in source, probe

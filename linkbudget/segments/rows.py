@@ -14,7 +14,8 @@ from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.fresnel import LINEAR_POLARIZATIONS
 
 #: The kinds of row.
-ROW_KINDS = ("segment", "interface", "coating", "reflections")
+ROW_KINDS = (SEGMENT_ROW, INTERFACE_ROW, COATING_ROW, REFLECTIONS_ROW) = ("segment", "interface", "coating",
+                                                                         "reflections")
 #: The linear polarizations whose powers are followed separately through every face.
 POLARIZATIONS = LINEAR_POLARIZATIONS
 
@@ -102,4 +103,4 @@ class Row:
 
 def segment_row(segment, losses, **typed):
     """The ``segment`` row of a segment (its name, kind and origin) with ``losses`` per case."""
-    return Row(segment.name, "segment", (segment.name,), losses, segment_kind=segment.kind, **typed)
+    return Row(segment.name, SEGMENT_ROW, (segment.name,), losses, segment_kind=segment.kind, **typed)
