@@ -190,7 +190,8 @@ class SegmentSpec(Strict):
         """The segment's :class:`~linkbudget.segments.rows.Row` for each of ``cases``
         (:mod:`linkbudget.segments.cases`), given what lies ``around`` it (:class:`Around`)."""
         parts = [self.loss_parts_db(wavelength_m, case) for case in cases]
-        losses = {case.name: self.loss_db(wavelength_m, case, around) for case in cases}
+        losses = {case.name: self.loss_db(wavelength_m, case, around) if case_parts is None
+                  else sum(case_parts.values()) for case, case_parts in zip(cases, parts, strict=True)}
         return segment_row(self, losses, loss_parts_db=by_part(cases, parts), facts=self.row_facts())
 
     def row_facts(self):
