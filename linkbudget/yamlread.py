@@ -12,7 +12,8 @@ graph by :func:`compose`, which enforces the other bounds while it reads, not af
 Plain scalars are resolved with the rules of the YAML 1.2 core schema, not YAML 1.1's: only
 ``true``/``false`` are booleans, only plain decimal digits without a leading zero are integers,
 so ``1:30`` (base 60 in YAML 1.1), ``0x10``, ``017`` (octal in YAML 1.1), ``1_000``, ``yes``,
-``no``, ``on`` and dates stay text, and a field expecting a number says so. A merge key ``<<`` is kept for the reader of the nodes to apply.
+``no``, ``on`` and dates stay text, and a field expecting a number says so. A merge key ``<<``
+is kept for the reader of the nodes to apply.
 """
 
 import re
