@@ -30,7 +30,7 @@ from linkbudget.segments.base import Around
 from linkbudget.segments.cases import CASES, CORNERS
 from linkbudget.segments.roles import Carries, Coats, Faces, Guides, Joint, Passes
 from linkbudget.segments.rows import COATING_ROW, INTERFACE_ROW, POLARIZATIONS, REFLECTIONS_ROW, Row
-from linkbudget.text import length_text
+from linkbudget.text import escaped, length_text, nm
 
 
 @dataclass(frozen=True)
@@ -506,9 +506,6 @@ def _not_finite_problem(result, link):
     owner = row.origin[0] if row.kind == REFLECTIONS_ROW else row.origin[-1]
     path = ("chain", names.index(owner))
     mark = None if link.positions is None else link.positions.mark(path)
-    from linkbudget.report.summary import nm
-    from linkbudget.text import escaped
-
     return Problem(link.file, mark, path,
                    f"the budget is not finite at {nm(result.wavelength_m[index])}: row '{escaped(row.name)}' "
                    f"loses {values}; the values are outside what the models can evaluate",

@@ -8,6 +8,8 @@ printable as a Python-style escape (``\\n``, ``\\x1b``, ``\\u202e``), so what is
 one line of visible characters.
 """
 
+import numpy as np
+
 #: Characters shown as a short escape rather than a code point.
 _SHORT_ESCAPES = {"\n": "\\n", "\r": "\\r", "\t": "\\t", "\\": "\\\\"}
 
@@ -39,3 +41,27 @@ def length_text(length_m):
         if length_m < below:
             return f"{length_m / factor:.6g} {unit}"
     return f"{length_m:.6g} m"
+
+
+#: Resolution of every printed and JSON wavelength [nm]: values closer than this print alike.
+WAVELENGTH_RESOLUTION_NM = 1e-6
+
+
+def _nm_label(wavelength_nm):
+    text = f"{round(float(wavelength_nm), 6):.6f}".rstrip("0").rstrip(".")
+    return "0" if text == "-0" else text
+
+
+def wavelength_text(wavelength_m):
+    """Wavelengths [m] as nm text with the fewest digits that state each exactly to
+    :data:`WAVELENGTH_RESOLUTION_NM` (``1550``, ``1550.116``, ``1550.002``): every digit the user
+    wrote (to 1e-6 nm), so neighbours on an axis never print alike. A list for an array."""
+    values_nm = np.asarray(wavelength_m, dtype=float) * 1e9
+    if values_nm.ndim == 0:
+        return _nm_label(values_nm)
+    return [_nm_label(value) for value in values_nm]
+
+
+def nm(wavelength_m):
+    """One wavelength [m] as ``"1550.116 nm"`` (see :func:`wavelength_text`)."""
+    return f"{wavelength_text(wavelength_m)} nm"

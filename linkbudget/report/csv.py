@@ -3,9 +3,8 @@
 import csv
 import io
 
-from linkbudget.report.summary import wavelength_text
 from linkbudget.segments.cases import CASES
-from linkbudget.text import escaped
+from linkbudget.text import escaped, wavelength_text
 
 #: First characters a spreadsheet reads as a formula (common practice: OWASP "CSV injection").
 _FORMULA_STARTS = ("=", "+", "-", "@")

@@ -5,14 +5,13 @@ import numpy as np
 from linkbudget.report.summary import (
     db_text,
     margin_sentence,
-    nm,
     overload_sentence,
     parties_sentence,
     row_note,
     verdict,
     wavelength_status,
 )
-from linkbudget.text import escaped
+from linkbudget.text import escaped, nm
 
 #: Characters Markdown would read as syntax (emphasis, code, links, tables, headings), shown literally.
 _MARKDOWN_SYNTAX = "\\`*_[]#|~"

@@ -14,14 +14,13 @@ from rich.text import Text
 from linkbudget.report.summary import (
     db_text,
     margin_sentence,
-    nm,
     overload_sentence,
     parties_sentence,
     row_note,
     verdict,
     wavelength_status,
 )
-from linkbudget.text import escaped
+from linkbudget.text import escaped, nm
 
 #: Wavelengths listed one by one in the margin table; longer axes list the tightest ones.
 MAX_LISTED_WAVELENGTHS = 8

@@ -2,7 +2,7 @@
 
 import json
 
-from linkbudget.report.summary import wavelength_text
+from linkbudget.text import wavelength_text
 
 LINK = """\
 title: three close channels
