@@ -211,6 +211,11 @@ class _Side:
     medium: Carries
 
 
+def _air_around(wavelength_m):
+    """The air around a lone window, as the :class:`_Side` at its two faces."""
+    return _Side("air", None, Carries(np.full(np.shape(wavelength_m), SURROUNDING_INDEX, dtype=complex)))
+
+
 def _origin(*owners):
     """The segments a row sits between (the air around a window is none)."""
     return tuple(owner for owner in owners if owner is not None)
@@ -379,7 +384,7 @@ class _ChainWalk:
         air around it (:data:`SURROUNDING_INDEX`)."""
         side = _Side(segment.name, segment.name, medium)
         share = _stated_share(medium.polarization or "unpolarized", self.cases)
-        air = _Side("air", None, Carries(np.full(np.shape(self.wavelength_m), SURROUNDING_INDEX, dtype=complex)))
+        air = _air_around(self.wavelength_m) if lone else None
         if lone:
             self.upstream, self.joint, self.coating = _Carrier(air, 0.0, share, None, None), None, None
         back_reflectance, angle, entered_through_face, upstream = None, 0.0, False, self.upstream

@@ -4,6 +4,7 @@ import math
 
 import numpy as np
 
+from linkbudget.segments.rows import SEGMENT_ROW
 from linkbudget.text import escaped, nm
 
 
@@ -78,7 +79,7 @@ def row_note(row, index):
     R and A of a coating, a connector's return loss, the geometric estimate beside a datasheet
     loss, the parts of a loss, the row's facts."""
     notes = []
-    if row.reflectance is not None and row.kind != "segment":
+    if row.reflectance is not None and row.kind != SEGMENT_ROW:
         notes.append(f"R {_percent(row.reflectance_seen, index)}")
     if row.absorptance is not None:
         notes.append(f"A {_percent(row.absorptance_seen, index)}")
@@ -88,7 +89,7 @@ def row_note(row, index):
                       if any(float(cases[case][index]) != 0 for case in cases))
     if parts:
         notes.append(parts)
-    if row.kind == "segment" and row.reflectance is not None:
+    if row.kind == SEGMENT_ROW and row.reflectance is not None:
         notes.append(f"return loss {fixed(row.return_loss_db[index], 1)} dB")
     notes.extend(row.facts)  # the user's own words among them: each format escapes the whole note
     return "; ".join(notes)
