@@ -20,21 +20,26 @@ import re
 
 import yaml
 from yaml.composer import Composer
-from yaml.events import AliasEvent, CollectionStartEvent, ScalarEvent
+from yaml.events import AliasEvent, CollectionStartEvent, ScalarEvent, SequenceEndEvent
+from yaml.parser import Parser
+from yaml.reader import Reader
 from yaml.resolver import BaseResolver
+from yaml.scanner import Scanner
+
+
+class PurePythonParser(Reader, Scanner, Parser):
+    """PyYAML's own parser, written in Python: used where PyYAML was built without libyaml."""
+
+    def __init__(self, stream):
+        Reader.__init__(self, stream)
+        Scanner.__init__(self)
+        Parser.__init__(self)
+
 
 try:  # libyaml's parser: about six times faster than the pure-Python one
-    from yaml.cyaml import CParser as _Parser
+    from yaml.cyaml import CParser as FastParser
 except ImportError:  # pragma: no cover - PyYAML built without libyaml
-    from yaml.parser import Parser
-    from yaml.reader import Reader
-    from yaml.scanner import Scanner
-
-    class _Parser(Reader, Scanner, Parser):
-        def __init__(self, stream):
-            Reader.__init__(self, stream)
-            Scanner.__init__(self)
-            Parser.__init__(self)
+    FastParser = PurePythonParser
 
 #: Largest file read [bytes]. A link is a few kB; the largest catalog material file is 60 kB.
 MAX_FILE_BYTES = 1_000_000
@@ -109,6 +114,11 @@ def _place(mark):
     return mark.line + 1, mark.column + 1
 
 
+class PlainSequenceNode(yaml.SequenceNode):
+    """A list whose items are all scalars without tag or anchor (a row of a table such as
+    ``[1.55, 1.444, 0]``): composed in one pass, each item's tag resolved from its text."""
+
+
 class _BoundedComposer(Composer):
     """PyYAML's composer, counting nodes and depth as it composes (aliases expanded)."""
 
@@ -157,12 +167,51 @@ class _BoundedComposer(Composer):
             self.extent[event.anchor] = (self.count - start, levels)
         return node
 
+    def compose_sequence_node(self, anchor):
+        """A sequence node, as PyYAML composes it, with a short path for untagged scalar items.
 
-class _Loader(_BoundedComposer, _Parser, _Resolver):
-    def __init__(self, text):
-        _Parser.__init__(self, text)
-        _BoundedComposer.__init__(self)
-        _Resolver.__init__(self)
+        A table of numbers (a material's rows) is thousands of scalars; each is counted and
+        resolved here directly instead of through :meth:`compose_node`, with the same bounds. A
+        list of only such items comes out as a :class:`PlainSequenceNode`.
+        """
+        start_event = self.get_event()
+        tag = start_event.tag
+        if tag is None or tag == "!":
+            tag = self.resolve(yaml.SequenceNode, None, start_event.implicit)
+        items, plain = [], True
+        while not self.check_event(SequenceEndEvent):
+            event = self.peek_event()
+            if type(event) is ScalarEvent and event.tag is None and event.anchor is None \
+                    and len(event.value) <= MAX_TEXT_CHARS:
+                self.get_event()
+                self.grow(1, 0, event)
+                items.append(yaml.ScalarNode(self.resolve(yaml.ScalarNode, event.value, event.implicit), event.value,
+                                             event.start_mark, event.end_mark, event.style))
+            else:
+                plain = False
+                items.append(self.compose_node(None, len(items)))
+        kind = PlainSequenceNode if plain and items else yaml.SequenceNode
+        node = kind(tag, items, start_event.start_mark, self.get_event().end_mark, flow_style=start_event.flow_style)
+        if anchor is not None:  # registered once composed: an alias inside it is refused by compose_node
+            self.anchors[anchor] = node
+        return node
+
+
+def loader_class(parser):
+    """The bounded loader class reading with ``parser`` (:data:`FastParser` or :class:`PurePythonParser`)."""
+
+    class Loader(_BoundedComposer, parser, _Resolver):
+        def __init__(self, text):
+            parser.__init__(self, text)
+            _BoundedComposer.__init__(self)
+            _Resolver.__init__(self)
+
+    return Loader
+
+
+#: The loader :func:`compose` uses: libyaml's parser when PyYAML has it. Both parsers give the same
+#: nodes and the same placed errors (the test suite reads every input test with each).
+LOADER = loader_class(FastParser)
 
 
 def compose(text):
@@ -174,9 +223,8 @@ def compose(text):
         On a YAML syntax error, a character YAML does not allow, more than one document, or a
         document beyond one of the bounds; placed where the reader stopped.
     """
-    loader = _Loader(text)
     try:
-        return loader.get_single_node()
+        return _single_node(text)
     except yaml.MarkedYAMLError as error:
         mark = error.problem_mark or error.context_mark
         where = () if mark is None else _place(mark)
@@ -185,7 +233,7 @@ def compose(text):
                         quotes_input=True) from None
     except yaml.reader.ReaderError as error:
         # libyaml counts bytes of UTF-8, the pure-Python reader characters
-        if isinstance(loader, yaml.reader.Reader):
+        if issubclass(LOADER, yaml.reader.Reader):
             before = text[: error.position]
         else:
             before = text.encode("utf-8")[: error.position].decode("utf-8", "replace")
@@ -197,5 +245,13 @@ def compose(text):
         before = text[: error.start]
         line, column = before.count("\n") + 1, error.start - (before.rfind("\n") + 1) + 1
         raise ReadError("text holds a lone surrogate, which is not a character", line, column) from None
+
+
+def _single_node(text):
+    """The one document of ``text`` composed by :data:`LOADER` (the pure-Python reader checks
+    the characters when it is made, libyaml's while it parses)."""
+    loader = LOADER(text)
+    try:
+        return loader.get_single_node()
     finally:
         loader.dispose()

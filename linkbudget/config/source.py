@@ -13,7 +13,7 @@ import yaml
 
 from linkbudget.messages import format_hint
 from linkbudget.text import escaped
-from linkbudget.yamlread import IMPLICIT_TYPES, ReadError, compose
+from linkbudget.yamlread import IMPLICIT_TYPES, PlainSequenceNode, ReadError, compose
 
 _CORE = "tag:yaml.org,2002:"
 
@@ -94,16 +94,24 @@ class Problem:
 
 @dataclass
 class Positions:
-    """Where each key path of a document was written."""
+    """Where each key path of a document was written.
+
+    The items of a list of scalars (a table row) are not entered one by one: ``scalar_lists``
+    keeps each such list's nodes by its key path, and :meth:`mark` reads an item's place there.
+    """
 
     file: str
     marks: dict = field(default_factory=dict)
     key_marks: dict = field(default_factory=dict)
+    scalar_lists: dict = field(default_factory=dict)
 
     def mark(self, path):
         """The mark of ``path``, or of its nearest written ancestor."""
         path = tuple(path)
         while path not in self.marks and path:
+            items = self.scalar_lists.get(path[:-1])
+            if items is not None and isinstance(path[-1], int) and 0 <= path[-1] < len(items):
+                return _mark(items[path[-1]])
             path = path[:-1]
         return self.marks.get(path)
 
@@ -137,6 +145,11 @@ class _Builder:
             self.check_tag(node, path, _COLLECTIONS["mapping"])
             return {key: self.build(value_node, (*path, key))
                     for key, (_, value_node) in self.pairs(node, path).items()}
+        if isinstance(node, PlainSequenceNode) and all(item.tag in _SCALARS for item in node.value):
+            # untagged scalars, each tag resolved from its own text by the pattern _SCALARS checks
+            self.check_tag(node, path, _COLLECTIONS["list"])
+            self.positions.scalar_lists[tuple(path)] = node.value
+            return [_SCALARS[item.tag][1](item.value) for item in node.value]
         if isinstance(node, yaml.SequenceNode):
             self.check_tag(node, path, _COLLECTIONS["list"])
             return [self.build(item, (*path, index)) for index, item in enumerate(node.value)]

@@ -5,7 +5,7 @@ import os
 import pytest
 
 import linkbudget
-from linkbudget.config.source import ConfigError, load_yaml
+from linkbudget.config.source import ConfigError, Mark, load_yaml
 from linkbudget.materials.library import load_material
 from linkbudget.paths import PathRefused
 from linkbudget.yamlread import MAX_FILE_BYTES, MAX_NODES, ReadError, compose, read_text
@@ -97,3 +97,34 @@ def test_load_material_recursive_alias_is_refused(tmp_path):
     path.write_text("name: loop\nrows: &r [*r]\n", encoding="utf-8")
     with pytest.raises(ConfigError, match="alias"):
         load_material(path)
+
+
+# --- lists of scalars (table rows) are read in one pass, each item still placed -----------------
+
+def test_load_yaml_places_every_item_of_a_list_of_scalars():
+    text = "rows:\n  - [1.5, 2, x]\n  - [7, 'q', null, true]\n"
+    data, positions = load_yaml(text)
+    assert data == {"rows": [[1.5, 2, "x"], [7, "q", None, True]]}
+    # rows[1][1] is the quoted 'q' on line 3, column 9 (counted by hand in the text above)
+    assert positions.mark(("rows", 1, 1)) == Mark(3, 9)
+    assert positions.mark(("rows", 0, 2)) == Mark(2, 14)
+    assert positions.mark(("rows", 0)) == Mark(2, 5)
+    assert positions.mark(("rows", 0, 7)) == Mark(2, 5)  # no such item: the row itself
+
+
+def test_load_yaml_list_with_a_tagged_or_anchored_item_keeps_each_rule():
+    with pytest.raises(ConfigError, match=r"<string>:1:8: a\[1\]: '2.5' cannot be read as !!int"):
+        load_yaml("a: [1, !!int 2.5]\n")
+    with pytest.raises(ConfigError, match=r"<string>:1:5: a\[0\]: unsupported YAML tag"):
+        load_yaml("a: [<<, 1]\n")
+    assert load_yaml("a: [1, &x 2, *x]\n")[0] == {"a": [1, 2, 2]}
+
+
+def test_material_table_error_is_placed_at_the_item(tmp_path):
+    path = tmp_path / "glass.yaml"
+    path.write_text("name: test-glass\ndescription: d\nsource: s\ntable:\n  wavelength_unit: um\n"
+                    "  columns: [wavelength, n]\n  rows:\n    - [1.0, 1.5]\n    - [1.2, abc]\n", encoding="utf-8")
+    with pytest.raises(ConfigError) as caught:
+        load_material(str(path))
+    # "abc" is on line 9 at column 13 of the file written above
+    assert f"{path}:9:13: table.rows[1][1]" in str(caught.value)
