@@ -44,7 +44,7 @@ class InputProblem(ValueError):
 class Strict(BaseModel):
     """A schema model: unknown keys are errors, values are immutable once validated."""
 
-    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=False)
+    model_config = ConfigDict(extra="forbid", frozen=True, populate_by_name=False, defer_build=True)
 
 
 def _within(value, bounds):
