@@ -440,7 +440,8 @@ def coupling_efficiency_1d(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0
     Notes
     -----
     The one-axis integral ∫exp(−Ax² + Bx)dx = √(π/A)·exp(B²/(4A)) of the derivation in
-    :func:`coupling_efficiency`; for w1 = w2 and no misalignment η_x = 1.
+    :func:`coupling_efficiency`; for w1 = w2 and no misalignment η_x = 1. The real part of the
+    exponent is taken term by term in :func:`misalignment_terms`.
 
     The sign of the tilt matters through the cross term i·kθd·w2² alone, whose share of the
     exponent is +2kθd·w2²·δ/|S|² (δ = λD/(πn)): after a gap (D > 0) a tilt with θ·d > 0 couples
@@ -453,19 +454,47 @@ def coupling_efficiency_1d(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0
     .. [2] W. B. Joyce and B. C. DeLoach, "Alignment of Gaussian beams", Appl. Opt. 23, 4187 (1984)
        (from memory).
     """
+    offset_m = finite(offset_m, "offset")
+    tilt_rad = finite(tilt_rad, "tilt")
+    prefactor, offset_term, cross_term, tilt_term = misalignment_terms(w1_m, w2_m, wavelength_m,
+                                                                       separation_m=separation_m, n=n)
+    return prefactor * np.exp(-2.0 * (offset_term * offset_m**2 - cross_term * tilt_rad * offset_m
+                                      + tilt_term * tilt_rad**2))
+
+
+def misalignment_terms(w1_m, w2_m, wavelength_m, *, separation_m=0.0, n=1.0):
+    """One axis of the Gaussian overlap as a quadratic in offset and tilt: (P, A, B, C) of
+
+        η_x = P·exp(−2·(A·d² − B·θ·d + C·θ²)),
+
+    the real part of the exponent of :func:`coupling_efficiency_1d` taken term by term, with
+    S = w1² + w2² − iδ, δ = λD/(πn) and k = 2πn/λ:
+
+        P = 2w1w2/|S|,  A = (w1² + w2²)/|S|²,  B = k·w2²·δ/|S|²,
+        C = k²w2²·(w1²(w1² + w2²) + δ²)/(4|S|²).
+
+    A > 0, C > 0, B ≥ 0 (B = 0 without a gap) and 4AC − B² ∝ w1²((w1² + w2²)² + δ²) > 0, so the
+    quadratic is positive definite in (d, θ): over a box of offsets and tilts its largest value
+    lies at a corner and its least on the edges nearest d = θ = 0 (used by the tolerance search of
+    :mod:`linkbudget.segments.coupling`).
+
+    References
+    ----------
+    .. [1] H. Kogelnik, "Coupling and conversion coefficients for optical modes", 1964 (from memory).
+    .. [2] W. B. Joyce and B. C. DeLoach, "Alignment of Gaussian beams", Appl. Opt. 23, 4187 (1984)
+       (from memory).
+    """
     w1_sq = positive(w1_m, "mode-field radius w1") ** 2
     w2_sq = positive(w2_m, "mode-field radius w2") ** 2
     wavelength_m = positive(wavelength_m, "wavelength")
     n = positive(n, "refractive index")
-    offset_m = finite(offset_m, "offset")
-    tilt_rad = finite(tilt_rad, "tilt")
     delta = wavelength_m * non_negative(separation_m, "separation") / (np.pi * n)  # 2D/k
     k = 2.0 * np.pi * n / wavelength_m
-    s = w1_sq + w2_sq - 1j * delta
-    c = w1_sq - 1j * delta
-    prefactor = 2.0 * np.sqrt(w1_sq * w2_sq) / np.abs(s)
-    numerator = offset_m**2 + 1j * k * tilt_rad * offset_m * w2_sq + (k * tilt_rad) ** 2 * w2_sq * c / 4.0
-    return prefactor * np.exp(-2.0 * np.real(numerator / s))
+    sum_sq = w1_sq + w2_sq
+    s_abs_sq = sum_sq**2 + delta**2
+    prefactor = 2.0 * np.sqrt(w1_sq * w2_sq / s_abs_sq)
+    return (prefactor, sum_sq / s_abs_sq, k * w2_sq * delta / s_abs_sq,
+            k**2 * w2_sq * (w1_sq * sum_sq + delta**2) / (4.0 * s_abs_sq))
 
 
 def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_across_m, wavelength_m, *,
