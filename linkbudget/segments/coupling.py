@@ -22,6 +22,7 @@ import numpy as np
 from linkbudget.physics import gaussian
 from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.gaussian import coupling_efficiency_tilt_azimuth
+from linkbudget.segments.cases import TYPICAL
 
 #: cos ψ of the tilt's azimuth ψ from the offset's direction, per ``tilt_direction`` value.
 TILT_DIRECTION_COSINES = {"along-offset": 1.0, "against-offset": -1.0, "across-offset": 0.0}
@@ -51,15 +52,27 @@ def _azimuth_cosine(case, tilt, tilt_direction):
 
 
 def _case_losses_db(cases, typical_at, search):
-    """case name -> loss [dB], from the efficiency each case's own point gives (``typical_at(case)``)
-    and, for the cases that search (worst, best), the least and largest efficiency ``search()``
-    finds over the tolerance box (run once, only when a case needs it)."""
-    found, losses = [], {}
+    """case name -> loss [dB], from the efficiency each case's own point gives (``typical_at(case)``);
+    the cases that search (worst, best) take the least and largest efficiency ``search()`` finds
+    over the tolerance box, or the nominal point's where that is beyond them. The search and the
+    nominal point are each evaluated once, and only when a case needs them."""
+    evaluated = {}
+
+    def once(key, compute):
+        if key not in evaluated:
+            evaluated[key] = compute()
+        return evaluated[key]
+
+    def nominal():
+        return once("nominal", lambda: typical_at(TYPICAL))
+
+    losses = {}
     for case in cases:
-        if case.searches and not found:
-            found.append(search())
-        least, largest = found[0] if case.searches else (None, None)
-        efficiency = case.extreme(typical_at(case), least, largest)
+        if case.searches:
+            least, largest = once("search", search)
+            efficiency = case.extreme(nominal(), least, largest)
+        else:
+            efficiency = nominal() if case == TYPICAL else typical_at(case)
         losses[case.name] = loss_db_from_transmittance(efficiency)
     return losses
 
@@ -88,11 +101,6 @@ def _worse_axis(efficiencies):
 def _circular(mode):
     """The mode has one axis for both (:meth:`~linkbudget.segments.base.Mode.circular`)."""
     return mode.x is mode.y
-
-
-#: cos ψ of the two parallel turns, where the extremes over an unknown azimuth lie between
-#: circular modes (ln η is then linear in cos ψ, see :func:`_searched_cosines`).
-_PARALLEL_TURNS = np.array([[-1.0], [1.0]])
 
 
 def _searched_cosines(at):
@@ -183,21 +191,77 @@ def coupling_losses_db(wavelength_m, before, after, cases, *, offset=None, tilt=
 
 
 def _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
+    """(least, largest) coupling efficiency over the tolerance box and every azimuth the tilt may
+    have: in closed form over offset, tilt and azimuth between circular modes
+    (:func:`_circular_extremes`), else over the box's corners (:func:`_corner_extremes`)."""
+    search = _circular_extremes if _circular(before) and _circular(after) else _corner_extremes
+    return search(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction)
+
+
+def _span(spread):
+    """(low, high) of a spread, (0, 0) when absent."""
+    ends = _ends(spread)
+    return ends[0], ends[-1]
+
+
+def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
+    """(least, largest) coupling between circular modes, searched over the mode sizes and the
+    separation at their candidates, and in closed form over offset d, tilt θ and azimuth u = cos ψ.
+
+    Both axes together give η = P²·exp(−2E) with E = A·d² − u·B·θd + C·θ², a positive definite
+    quadratic in (d, θ) (:func:`~linkbudget.physics.gaussian.misalignment_terms`). With d, θ ≥ 0:
+
+    - the least coupling is E's largest value, at a corner of the (d, θ) box; over an unknown
+      azimuth it is u = −1 at the high ends of both (every term then grows with d and θ);
+    - the largest coupling is E's least value, which lies on the box's edges nearest d = θ = 0
+      (E's own minimum is at d = θ = 0): on θ = θ_low at d = uBθ_low/(2A), on d = d_low at
+      θ = uB·d_low/(2C), each clipped into its range; over an unknown azimuth u = +1, where a tilt
+      can partly make up for an offset.
+
+    One candidate of mode sizes and separation is held at a time, so memory is O(wavelengths).
+    """
+    (d_low, d_high), (t_low, t_high) = _span(offset), _span(tilt)
+    given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
+    u_least, u_largest = (-1.0, 1.0) if given is None else (given, given)
+    least = largest = None
+    for (w1, _), (w2, _), z in itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
+                                                 _ends(separation)):
+        prefactor, *terms = gaussian.misalignment_terms(w1, w2, wavelength_m, separation_m=z, n=n)
+        a, b, c = terms
+        most = np.maximum.reduce([_exponent(terms, d, theta, u_least) for d in (d_low, d_high)
+                                  for theta in (t_low, t_high)])
+        d_best = np.clip(u_largest * b * t_low / (2.0 * a), d_low, d_high)
+        t_best = np.clip(u_largest * b * d_low / (2.0 * c), t_low, t_high)
+        fewest = np.minimum(_exponent(terms, d_best, t_low, u_largest), _exponent(terms, d_low, t_best, u_largest))
+        low, high = prefactor**2 * np.exp(-2.0 * most), prefactor**2 * np.exp(-2.0 * fewest)
+        least = low if least is None else np.minimum(least, low)
+        largest = high if largest is None else np.maximum(largest, high)
+    return least, largest
+
+
+def _exponent(terms, offset_m, tilt_rad, cosine):
+    """E = A·d² − u·B·θd + C·θ² of two circular modes' coupling η = P²·exp(−2E), from the
+    terms (A, B, C) of :func:`~linkbudget.physics.gaussian.misalignment_terms`."""
+    a, b, c = terms
+    return a * offset_m**2 - cosine * b * tilt_rad * offset_m + c * tilt_rad**2
+
+
+def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling efficiency over the corners of the tolerance box and every
-    azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks."""
+    azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks: for elliptical modes,
+    whose overlap is not one quadratic in offset and tilt over both axes."""
     shape = np.shape(wavelength_m)
-    circular = _circular(before) and _circular(after)
     corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
                                      _ends(offset), _ends(tilt), _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
         (bx, by, ax, ay), (d, theta, gap) = _stacked(corners[start:start + per_chunk], shape)
-        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n, circular=circular)
+        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n)
         if tilt_direction is not None:
             cosines = np.array([[TILT_DIRECTION_COSINES[tilt_direction]]])
         else:
-            cosines = _PARALLEL_TURNS if circular else _searched_cosines(at)
+            cosines = _searched_cosines(at)
         values = _worse_axis(at(cosines))  # (corner, azimuth, wavelength)
         least.append(values.min(axis=(0, 1)))
         largest.append(values.max(axis=(0, 1)))
