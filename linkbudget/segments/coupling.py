@@ -204,46 +204,41 @@ def _span(spread):
     return ends[0], ends[-1]
 
 
+#: Wavelengths the closed-form search evaluates at once: its candidates-by-wavelengths
+#: temporaries stay in the cache and are reused instead of being mapped afresh on a long sweep.
+_BLOCK_POINTS = 8192
+
+
 def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
-    """(least, largest) coupling between circular modes, searched over the mode sizes and the
-    separation at their candidates, and in closed form over offset d, tilt θ and azimuth u = cos ψ.
-
-    Both axes together give η = P²·exp(−2E) with E = A·d² − u·B·θd + C·θ², a positive definite
-    quadratic in (d, θ) (:func:`~linkbudget.physics.gaussian.misalignment_terms`). With d, θ ≥ 0:
-
-    - the least coupling is E's largest value, at a corner of the (d, θ) box; over an unknown
-      azimuth it is u = −1 at the high ends of both (every term then grows with d and θ);
-    - the largest coupling is E's least value, which lies on the box's edges nearest d = θ = 0
-      (E's own minimum is at d = θ = 0): on θ = θ_low at d = uBθ_low/(2A), on d = d_low at
-      θ = uB·d_low/(2C), each clipped into its range; over an unknown azimuth u = +1, where a tilt
-      can partly make up for an offset.
-
-    One candidate of mode sizes and separation is held at a time, so memory is O(wavelengths).
-    """
-    (d_low, d_high), (t_low, t_high) = _span(offset), _span(tilt)
+    """(least, largest) coupling between circular modes: the closed form over offset, tilt and
+    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) at every candidate
+    of mode sizes and separation at once, in blocks of wavelengths, so memory is O(wavelengths)."""
     given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
-    u_least, u_largest = (-1.0, 1.0) if given is None else (given, given)
-    least = largest = None
-    for (w1, _), (w2, _), z in itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
-                                                 _ends(separation)):
-        prefactor, *terms = gaussian.misalignment_terms(w1, w2, wavelength_m, separation_m=z, n=n)
-        a, b, c = terms
-        most = np.maximum.reduce([_exponent(terms, d, theta, u_least) for d in (d_low, d_high)
-                                  for theta in (t_low, t_high)])
-        d_best = np.clip(u_largest * b * t_low / (2.0 * a), d_low, d_high)
-        t_best = np.clip(u_largest * b * d_low / (2.0 * c), t_low, t_high)
-        fewest = np.minimum(_exponent(terms, d_best, t_low, u_largest), _exponent(terms, d_low, t_best, u_largest))
-        low, high = prefactor**2 * np.exp(-2.0 * most), prefactor**2 * np.exp(-2.0 * fewest)
-        least = low if least is None else np.minimum(least, low)
-        largest = high if largest is None else np.maximum(largest, high)
-    return least, largest
+    box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
+               cosine_range=(-1.0, 1.0) if given is None else (given, given))
+    wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
+    candidates = [(w1, w2, z) for (w1, _), (w2, _), z in itertools.product(
+        _mode_candidates(before, after), _mode_candidates(after, before), _ends(separation))]
+    w1, w2, gap = (_candidate_axis(values) for values in zip(*candidates, strict=True))
+    least, largest = np.empty_like(wavenumber), np.empty_like(wavenumber)
+    for start in range(0, wavenumber.shape[-1], _BLOCK_POINTS):
+        block = slice(start, start + _BLOCK_POINTS)
+        low, high = gaussian.circular_coupling_extremes(_in_block(w1, block), _in_block(w2, block),
+                                                        wavenumber[block], separation_m=_in_block(gap, block), **box)
+        least[block], largest[block] = low.min(axis=0), high.max(axis=0)
+    return least.reshape(np.shape(wavelength_m)), largest.reshape(np.shape(wavelength_m))
 
 
-def _exponent(terms, offset_m, tilt_rad, cosine):
-    """E = A·d² − u·B·θd + C·θ² of two circular modes' coupling η = P²·exp(−2E), from the
-    terms (A, B, C) of :func:`~linkbudget.physics.gaussian.misalignment_terms`."""
-    a, b, c = terms
-    return a * offset_m**2 - cosine * b * tilt_rad * offset_m + c * tilt_rad**2
+def _candidate_axis(values):
+    """Candidate values stacked on a leading axis: (candidates, 1) for constants, else
+    (candidates, wavelengths)."""
+    arrays = np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values))
+    return np.stack(arrays).reshape(len(arrays), -1)
+
+
+def _in_block(values, block):
+    """Candidate values over this block of wavelengths (a constant is the same in every block)."""
+    return values if values.shape[-1] == 1 else values[:, block]
 
 
 def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
