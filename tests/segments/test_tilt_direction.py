@@ -116,6 +116,21 @@ def test_best_case_offset_inside_its_range_makes_up_for_the_least_tilt():
     assert best_db[0] < numeric_loss_db(0.0, offset_m=0.0, tilt_rad=np.deg2rad(0.5)) - 0.005  # 1.1732 vs 1.1813 dB
 
 
+def test_tilt_along_offset_with_spreads_searches_all_four_corners_and_the_near_edges():
+    # A tilt turned along the offset: the least coupling may lie at any corner of the box (the
+    # cross term then lowers the loss as d and θ grow together), the largest inside an edge.
+    chain = misaligned("connector", "along-offset", offset={"min": "0.5 um", "max": "2.1 um"},
+                       tilt={"min": "0.3 deg", "max": "0.75 deg"})
+    losses = coupling_losses(chain)
+    corners = [numeric_loss_db(0.0, offset_m=d, tilt_rad=np.deg2rad(theta)) for d in (0.5e-6, 2.1e-6)
+               for theta in (0.3, 0.75)]
+    assert_same_coupling(losses["worst"], [max(corners)])
+    found = minimize(lambda x: numeric_loss_db(0.0, offset_m=x[0] * 1e-6, tilt_rad=np.deg2rad(x[1])),
+                     [0.5, 0.3], method="L-BFGS-B", bounds=[(0.5, 2.1), (0.3, 0.75)],
+                     options={"ftol": 1e-14, "gtol": 1e-10})
+    assert_same_coupling(losses["best"], [found.fun])
+
+
 # ---- an elliptical receiving mode: the least coupling at an intermediate azimuth ----
 
 ELLIPTICAL_LAUNCHED = (2.4e-6, 2.4e-6)  # a 4.8 µm fibre mode
