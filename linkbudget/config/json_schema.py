@@ -35,8 +35,9 @@ SCHEMA_ID = f"urn:linkbudget:link-schema:{__version__}"
 #: Schema) and Python's ``re`` without ``re.ASCII`` would also match other Unicode spaces.
 _ASCII_SPACE = r"[\t\n\v\f\r ]"
 
-#: An index written as text: ``n`` or ``n+κj`` (``κ`` may be left out, as in ``1.5+j``), in parentheses
-#: or not, spaces around the sign; the loader reads it with Python's ``complex``.
+#: An index written as text (an expression for ``re.ASCII``): ``n`` or ``n+κj`` (``κ`` may be left out, as
+#: in ``1.5+j``), in parentheses or not, spaces around the sign. The loader reads it with Python's
+#: ``complex``, which also takes a few rarer forms (digits of other scripts, ``_`` between digits).
 _UNSIGNED = NUMBER_PATTERN.removeprefix("[-+]?")
 INDEX_PATTERN = (rf"^\s*(?:\(\s*{NUMBER_PATTERN} *(?:[-+] *(?:{_UNSIGNED})? *[jJ])?\s*\)"
                  rf"|{NUMBER_PATTERN} *(?:[-+] *(?:{_UNSIGNED})? *[jJ])?)\s*$")
@@ -95,8 +96,8 @@ def written_schema(written):
         return quantity_schema(written.dimension, written.example)
     if written.form in ("number", "integer"):
         return {"type": written.form, **_bounds_keywords(written.bounds)}
-    pattern = INDEX_PATTERN if written.form == "index" else portable_pattern(written.pattern)
-    return {"anyOf": [{"type": "number"}, {"type": "string", "pattern": pattern}]}
+    pattern = INDEX_PATTERN if written.form == "index" else written.pattern
+    return {"anyOf": [{"type": "number"}, {"type": "string", "pattern": portable_pattern(pattern)}]}
 
 
 def _summary(docstring):

@@ -10,16 +10,21 @@ value such as ``1310 nm`` is text.
 import copy
 import json
 import re
+import shutil
+import subprocess
 from functools import cache
 from pathlib import Path
 
 import pytest
 import yaml
 from jsonschema import Draft202012Validator
+from pydantic import TypeAdapter, ValidationError
 
 from linkbudget.config import ConfigError, parse_link
+from linkbudget.config.fields import ComplexIndex
 from linkbudget.config.json_schema import DIALECT, SCHEMA_ID, link_schema, quantity_schema
 from linkbudget.segments.registry import KINDS
+from linkbudget.segments.splitter import split_ratio
 from linkbudget.units import UNITS, UnitError, parse_quantity
 from tests.conftest import run_cli
 
@@ -292,3 +297,68 @@ def test_cli_schema_prints_and_writes_the_schema(tmp_path):
     assert target.read_text(encoding="utf-8") == "mine"
     assert run_cli("schema", "-o", target, "--force").exit_code == 0
     assert target.read_text(encoding="utf-8") == printed.stdout
+
+
+def schema_of(model, key):
+    """The text form of a "number or text" key: its pattern's schema."""
+    (text,) = [form for form in link_schema()["$defs"][model]["properties"][key]["anyOf"] if form["type"] == "string"]
+    return text
+
+
+def reads(function, value):
+    try:
+        function(value)
+        return True
+    except (ValueError, ValidationError):
+        return False
+
+
+#: Indices written as text: the forms of the README and near misses; sizes all valid.
+INDEX_SAMPLES = ["1.5", " 1.5 ", "1.447+3.0e-8j", "1.447 + 3.0e-8 j", "(1.5+2j)", "( 1.5+2j )", "1.5+j", "1.5+2J",
+                 "1.5e0+1.0e-3j", "1.5-0j", "1.5+2i", "1.5+2", "j", "n=1.5", "1.5 2j", "1.5+2jj", "(1.5+2j", "1.5++2j",
+                 "", "1.5\t+2j", "1.5;"]
+#: Forms Python's complex() takes that the pattern refuses (the schema is stricter there).
+INDEX_FORMS_ONLY_THE_LOADER_READS = ["1.4_5", "1 . 5", "\u0661.\u0665"]
+RATIO_SAMPLES = ["2/98", " 2 / 98 ", "1/3", "0.02", "1e-2", "2.5/97.5", "2:98", "2/98/1", "a/b", "2 98", "/98", "2/",
+                 "2%", "\u0662/98"]
+
+
+def test_index_pattern_reads_the_forms_the_loader_reads():
+    pattern = Draft202012Validator(schema_of("Medium", "index"))
+    loader = TypeAdapter(ComplexIndex).validate_python
+    assert [text for text in INDEX_SAMPLES if pattern.is_valid(text) is not reads(loader, text)] == []
+    assert all(reads(loader, text) and not pattern.is_valid(text) for text in INDEX_FORMS_ONLY_THE_LOADER_READS)
+
+
+def test_split_ratio_pattern_reads_the_forms_the_loader_reads():
+    pattern = Draft202012Validator(schema_of("Splitter", "ratio"))
+    assert [text for text in RATIO_SAMPLES if pattern.is_valid(text) is not reads(split_ratio, text)] == []
+
+
+def schema_patterns(node):
+    if isinstance(node, dict):
+        yield from [node["pattern"]] if isinstance(node.get("pattern"), str) else []
+        for value in node.values():
+            yield from schema_patterns(value)
+    elif isinstance(node, list):
+        for value in node:
+            yield from schema_patterns(value)
+
+
+_NODE_MATCHES = """const [patterns, samples] = JSON.parse(require("fs").readFileSync(0, "utf8"));
+const matches = patterns.map(p => { const r = new RegExp(p, "u"); return samples.map(t => r.test(t)); });
+console.log(JSON.stringify(matches));"""
+
+
+@pytest.mark.skipif(shutil.which("node") is None, reason="needs Node.js for ECMA-262 regular expressions")
+def test_patterns_match_alike_in_ecma262_and_python():
+    """An editor's language server runs the patterns as JavaScript regular expressions (with the
+    ``u`` flag), jsonschema as Python's: on every sample both must agree."""
+    patterns = sorted(set(schema_patterns(link_schema())))
+    assert len(patterns) >= len(DIMENSIONS) + 2  # a pattern per dimension, the index and the split ratio
+    samples = FORM_SAMPLES + INDEX_SAMPLES + INDEX_FORMS_ONLY_THE_LOADER_READS + RATIO_SAMPLES
+    done = subprocess.run(["node", "-e", _NODE_MATCHES], input=json.dumps([patterns, samples]), capture_output=True,
+                          text=True, check=True, timeout=60)
+    in_javascript = json.loads(done.stdout)
+    in_python = [[re.search(pattern, text) is not None for text in samples] for pattern in patterns]
+    assert in_javascript == in_python
