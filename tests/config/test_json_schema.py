@@ -362,3 +362,13 @@ def test_patterns_match_alike_in_ecma262_and_python():
     in_javascript = json.loads(done.stdout)
     in_python = [[re.search(pattern, text) is not None for text in samples] for pattern in patterns]
     assert in_javascript == in_python
+
+
+def test_readme_editor_support_names_one_schema_file():
+    """The README's command writes the file its modeline and its editor settings point at."""
+    (written,) = set(re.findall(r"linkbudget schema -o (\S+)", README))
+    assert f"# yaml-language-server: $schema=./{written}\n" in README
+    (settings,) = [json.loads(block) for block in re.findall(r"```json\n(.*?)```", README, re.S)
+                   if "yaml.schemas" in block]
+    assert list(settings["yaml.schemas"]) == [f"./{written}"]
+    assert "configs/*.yaml" in settings["yaml.schemas"][f"./{written}"]
