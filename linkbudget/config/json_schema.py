@@ -161,7 +161,8 @@ def link_schema():
     definitions = document["$defs"]
     for kind, model in KINDS.items():
         kind_key = definitions[refs[model].rsplit("/", 1)[-1]]["properties"]["kind"]
-        kind_key["description"] = f"Segment kind `{kind}`: {_summary(model.__doc__)}"
+        summary = _summary(model.__doc__)
+        kind_key["description"] = f"Segment kind `{kind}`: {summary[0].lower()}{summary[1:]}"
     link = definitions.pop(refs[LinkSpec].rsplit("/", 1)[-1])
     link["properties"]["chain"]["items"] = _chain_entry(KINDS, refs)
     return {

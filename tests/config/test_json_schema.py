@@ -9,6 +9,7 @@ value such as ``1310 nm`` is text.
 
 import copy
 import json
+import random
 import re
 import shutil
 import subprocess
@@ -26,6 +27,8 @@ from linkbudget.config.json_schema import DIALECT, SCHEMA_ID, link_schema, quant
 from linkbudget.segments.registry import KINDS
 from linkbudget.segments.splitter import split_ratio
 from linkbudget.units import UNITS, UnitError, parse_quantity
+from tests.cli.mutants import structure_mutant
+from tests.cli.test_fuzz import examples as fuzz_examples
 from tests.conftest import run_cli
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -372,3 +375,47 @@ def test_readme_editor_support_names_one_schema_file():
                    if "yaml.schemas" in block]
     assert list(settings["yaml.schemas"]) == [f"./{written}"]
     assert "configs/*.yaml" in settings["yaml.schemas"][f"./{written}"]
+
+
+#: Structure-aware mutants (tests/cli/mutants.py) made of each example the fuzz test starts from.
+MUTANTS_PER_EXAMPLE = 30
+#: How the loader's messages begin for what the schema refuses too: a key, a kind, a unit or a type.
+REFUSED_BY_BOTH = ("unknown key", "unknown segment kind", "missing required key", "missing unit", "unknown unit",
+                   "expected ", "cannot read ")
+
+
+def json_data(text):
+    """The document as PyYAML's safe_load reads it, or ``None`` when it is not JSON data (not YAML,
+    a date, binary, a recursive alias): a JSON Schema does not judge those."""
+    try:
+        document = yaml.safe_load(text)
+        json.dumps(document)
+    except Exception:  # noqa: BLE001 - whatever safe_load or json refuses: not a document to validate
+        return None
+    return document
+
+
+def test_schema_and_loader_agree_on_mutants_of_the_examples():
+    """A mutant the loader reads validates; one it refuses for a key, a kind, a unit or a type does
+    not. (The schema may pass what the loader refuses for a value's size or a rule between keys.)"""
+    seen = {"both read": 0, "both refuse": 0}
+    for path, example in fuzz_examples().items():
+        for number in range(MUTANTS_PER_EXAMPLE):
+            text = structure_mutant(example, random.Random(f"schema:{path.stem}:{number}"))
+            document = json_data(text)
+            if document is None:
+                continue
+            try:
+                parse_link(text, path.name, path.parent)
+                refused = []
+            except ConfigError as error:
+                refused = [problem.message for problem in error.problems]
+            passes = not errors(document)
+            where = f"{path.stem} mutant {number}"
+            if not refused:
+                assert passes, f"{where}: the loader reads it, the schema refuses it: {errors(document)[0].message}"
+                seen["both read"] += 1
+            elif any(message.startswith(REFUSED_BY_BOTH) for message in refused):
+                assert not passes, f"{where}: the loader refuses it ({refused[0]}), the schema passes it"
+                seen["both refuse"] += 1
+    assert seen["both read"] >= 20 and seen["both refuse"] >= 50, seen
