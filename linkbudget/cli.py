@@ -161,6 +161,11 @@ def _emit(result, output_format, output, force, protected):
     if output is None:
         sys.stdout.writelines([text] if isinstance(text, str) else text)
         return
+    _write_output(output, text, force, protected)
+
+
+def _write_output(output, text, force, protected=()):
+    """Write an output file atomically (:func:`~linkbudget.report.output.write_atomic`); a refusal exits 2."""
     from linkbudget.report.output import OutputError, write_atomic
 
     try:
@@ -244,6 +249,22 @@ def materials(
         _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
     except ConfigError as error:  # a malformed material file, placed
         _fail_input(str(error))
+
+
+@app.command(cls=_Command)
+def schema(
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+):
+    """Print the JSON Schema of link files, for an editor's YAML language server."""
+    from linkbudget.config.json_schema import schema_text
+
+    if output is None:
+        sys.stdout.write(schema_text())
+    else:
+        _write_output(output, schema_text(), force)
 
 
 def _interrupted(signum, frame):
