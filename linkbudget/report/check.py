@@ -74,11 +74,12 @@ def render_markdown(outcomes):
     mark = "✅" if closes == count else "❌"
     lines = [f"### {mark} linkbudget check: {closes} of {count} link(s) close", ""]
     rows = [[markdown_text(outcome.name), outcome.status.upper(),
+             ", ".join(outcome.reasons) if outcome.result is not None
+             else "<br>".join(markdown_text(line) for line in outcome.error.splitlines()),
              "" if outcome.result is None else db_text(outcome.worst_margin_db, signed=True),
-             "" if outcome.result is None else fixed(outcome.result.required_margin_db),
-             ", ".join(outcome.reasons) if outcome.result is not None else markdown_text(outcome.error)]
+             "" if outcome.result is None else fixed(outcome.result.required_margin_db)]
             for outcome in outcomes]
-    lines += _table(["link", "status", "worst margin dB", "required dB", "what fails"], rows, text_columns=2)
+    lines += _table(["link", "status", "what fails", "worst margin dB", "required dB"], rows, text_columns=3)
     lines += ["", check_summary(count, closes, fails, broken), ""]
     return "\n".join(lines)
 
