@@ -6,7 +6,8 @@ Matching rules
   ``fiber 2``). A segment only in the old link and one only in the new are a **rename** when their
   written entries are identical except for ``name``: same ``kind``, the same keys, every value
   written the same (``3 m`` and ``3m`` differ). Such pairs are taken in chain order, each segment at
-  most once. A segment renamed *and* edited is reported as removed plus added.
+  most once; its loss change is still given (zero unless what lies around it changed). A
+  segment renamed *and* edited is reported as removed plus added.
 - **Rows** (a segment's own row, and the faces the engine inserts between media) are matched by
   their stable origin: the row's kind and the names of the segments it sits between, old names
   mapped through the renames found (the n-th row of a kind and origin to the n-th).
