@@ -129,6 +129,13 @@ MARGIN_HEADERS = ["wavelength", "Δ received typ dB", "Δ received worst dB", "m
                   "margin worst dB (old → new)", "Δ margin worst dB"]
 
 
+#: The same headers for the terminal, broken into lines so the tables fit 80 columns.
+TERMINAL_CHANGE_HEADERS = ["status", "segment", "kind", "changed keys\n(old → new)", "Δ loss\ntyp dB",
+                           "Δ loss\nworst dB"]
+TERMINAL_MARGIN_HEADERS = ["wavelength", "Δ power\ntyp dB", "Δ power\nworst dB", "margin typ\nold → new",
+                           "margin worst\nold → new", "Δ margin\nworst dB"]
+
+
 def margin_cells(diff, index):
     """Cells of the margin table at common wavelength number ``index``."""
     def both(case):
@@ -215,8 +222,9 @@ def render_terminal(diff, max_margin_loss_db=None):
     def table(title, headers, rows, text_columns):
         shown_table = Table(title=title, title_justify="left", box=box.SIMPLE_HEAD, pad_edge=False)
         for number, header in enumerate(headers):
-            shown_table.add_column(header, justify="left" if number < text_columns else "right",
-                                   overflow="fold")
+            text = number < text_columns
+            shown_table.add_column(header, justify="left" if text else "right", overflow="fold",
+                                   no_wrap=header in ("status", "wavelength"))
         for row in rows:
             shown_table.add_row(*(Text(cell) for cell in row))
         return shown_table
@@ -226,12 +234,12 @@ def render_terminal(diff, max_margin_loss_db=None):
         if listed:
             at = "" if index is None else f" (loss changes at {nm(diff.wavelength_m[index])})"
             rows = [change_cells(change, index, escaped) for change in listed]
-            parts.append(table(f"{what} changed{at}", CHANGE_HEADERS, rows, 4))
+            parts.append(table(f"{what} changed{at}", TERMINAL_CHANGE_HEADERS, rows, 4))
             if more > 0:
                 parts.append(Text(f"and {more} more changed, not listed"))
     if not diff.changed_segments and not diff.rows:
         parts.append(Text("No segment changed."))
     shown = shown_wavelengths(diff, TERMINAL_MAX_WAVELENGTHS)
     if shown:
-        parts.append(table("Margins", MARGIN_HEADERS, [margin_cells(diff, i) for i in shown], 1))
+        parts.append(table("Margins", TERMINAL_MARGIN_HEADERS, [margin_cells(diff, i) for i in shown], 1))
     return Group(*parts)

@@ -312,3 +312,16 @@ def test_diff_markdown_is_bounded():
     short = render_markdown(found, max_chars=2_000)
     assert len(short) <= 2_000
     assert "the diff is cut here" in short and "--format json" in short
+
+
+def test_readme_states_the_markdown_bounds_and_the_gate():
+    from pathlib import Path
+
+    from linkbudget.report.diff_text import MAX_LISTED_SEGMENTS
+    from linkbudget.report.markdown import MARKDOWN_MAX_WAVELENGTHS
+
+    readme = " ".join((Path(__file__).resolve().parents[2] / "README.md").read_text(encoding="utf-8").split())
+    section = readme.split("## Reviewing a change", 1)[1].split("## Python API", 1)[0]
+    assert (f"at most {MAX_LISTED_SEGMENTS} segments, {MARKDOWN_MAX_WAVELENGTHS} wavelengths and "
+            f"{MAX_MARKDOWN_CHARS:,} characters") in section
+    assert "--max-margin-loss 0.5dB" in section and "linkbudget check configs/ --junit" in section
