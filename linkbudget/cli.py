@@ -165,7 +165,9 @@ def _emit(result, output_format, output, force, protected):
     _write_or_print(_report_text(result, output_format), output, force, protected)
 
 
-class CheckFormat(str, Enum):
+class ReportFormat(str, Enum):
+    """The formats of ``check`` and ``diff``."""
+
     text = "text"
     json = "json"
     markdown = "markdown"
@@ -179,7 +181,7 @@ def check(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
-    output_format: Annotated[CheckFormat, typer.Option("--format", "-f", help="Report format.")] = CheckFormat.text,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Report format.")] = ReportFormat.text,
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write the report to this file.")
     ] = None,
@@ -202,7 +204,7 @@ def check(
 
     required = _margin_override(min_margin)
     outcomes, protected = [], []
-    streaming = output is None and output_format is CheckFormat.text
+    streaming = output is None and output_format is ReportFormat.text
     for item in expand(links):
         started = time.perf_counter()
         try:
@@ -220,8 +222,8 @@ def check(
     if streaming:
         typer.echo(reports.check_summary(*reports.counts(outcomes)))
     else:
-        render = {CheckFormat.text: reports.render_lines, CheckFormat.markdown: reports.render_markdown,
-                  CheckFormat.json: lambda found: reports.render_json(found, required)}[output_format]
+        render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
+                  ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
         _write_or_print(render(outcomes), output, force, protected)
     if junit is not None:
         _write_or_print(reports.render_junit(outcomes), junit, force, protected)
@@ -242,12 +244,6 @@ def _write_or_print(text, output, force, protected):
         _fail_input(str(error))
 
 
-class DiffFormat(str, Enum):
-    text = "text"
-    json = "json"
-    markdown = "markdown"
-
-
 @app.command(cls=_Command)
 def diff(
     first: Annotated[str, typer.Argument(metavar="OLD|LINK", help="The old link file, or the link to compare.")],
@@ -255,7 +251,7 @@ def diff(
         metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
     against: Annotated[str | None, typer.Option(
         "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
-    output_format: Annotated[DiffFormat, typer.Option("--format", "-f", help="Output format.")] = DiffFormat.text,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
@@ -280,7 +276,7 @@ def diff(
     except (GitError, ConfigError) as error:
         _fail_input(str(error))
     found = compare(old, new)
-    if output is None and output_format is DiffFormat.text:
+    if output is None and output_format is ReportFormat.text:
         from rich.console import Console
 
         from linkbudget.report.diff_text import render_terminal
@@ -294,11 +290,11 @@ def diff(
 
 
 def _diff_text(found, output_format, max_loss_db):
-    if output_format is DiffFormat.json:
+    if output_format is ReportFormat.json:
         from linkbudget.report.diff_json import diff_json_chunks
 
         return diff_json_chunks(found, max_loss_db)
-    if output_format is DiffFormat.markdown:
+    if output_format is ReportFormat.markdown:
         from linkbudget.report.diff_text import render_markdown
 
         return render_markdown(found, max_loss_db)

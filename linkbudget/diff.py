@@ -122,35 +122,22 @@ class KeyChange:
 
 
 @dataclass(frozen=True)
-class SegmentChange:
-    """A segment's fate. ``loss_change_db``: case -> new minus old loss of its own row over the
-    common wavelengths (an added segment's whole loss, a removed one's loss negated)."""
+class Change:
+    """The fate of a segment, or of a row the engine inserted (a face, a plate's reflections): its
+    names in each revision (``None`` where it is not, a row's identifier for a row), its kind, its
+    changed written keys (a segment's), and ``loss_change_db``: case -> new minus old loss of its
+    row over the common wavelengths (an added one's whole loss, a removed one's loss negated)."""
 
     status: str
     old_name: str | None
     new_name: str | None
     kind: str
-    keys: tuple
     loss_change_db: dict
+    keys: tuple = ()
 
     @property
     def name(self):
         return self.new_name if self.new_name is not None else self.old_name
-
-
-@dataclass(frozen=True)
-class RowChange:
-    """An inserted row (a face, a plate's reflections) that appeared, went or changed its loss."""
-
-    status: str
-    old_id: str | None
-    new_id: str | None
-    kind: str
-    loss_change_db: dict
-
-    @property
-    def id(self):
-        return self.new_id if self.new_id is not None else self.old_id
 
 
 @dataclass(frozen=True)
@@ -164,8 +151,8 @@ class LinkDiff:
     only_old_wavelength_m: np.ndarray
     only_new_wavelength_m: np.ndarray
     link_keys: tuple
-    segments: tuple
-    rows: tuple
+    segments: tuple  # of Change, every segment
+    rows: tuple  # of Change, the inserted rows that changed
     received_change_db: dict
     margin_change_db: dict
     old_margin_db: dict
@@ -293,11 +280,11 @@ def _segment_changes(old, new, renames, old_rows, new_rows, old_index, new_index
             status = RENAMED
         else:
             status = CHANGED if keys or _loss_differs(loss) else UNCHANGED
-        changes.append(SegmentChange(status, old_name, segment.name, segment.kind, keys, loss))
+        changes.append(Change(status, old_name, segment.name, segment.kind, loss, keys))
     for segment in old.link.segments:
         if segment.name not in renames and segment.name not in new_entries:
             loss = _loss_change(old_rows.get(_own_row_key(segment.name, old_rows)), None, old_index, new_index)
-            changes.append(SegmentChange(REMOVED, segment.name, None, segment.kind, (), loss))
+            changes.append(Change(REMOVED, segment.name, None, segment.kind, loss))
     return tuple(changes)
 
 
@@ -311,7 +298,7 @@ def _row_changes(old_rows, new_rows, old_index, new_index):
         loss = _loss_change(old_row, new_row, old_index, new_index)
         status = ADDED if old_row is None else REMOVED if new_row is None else CHANGED if _loss_differs(loss) else None
         if status is not None:
-            changes.append(RowChange(status, old_row and old_row.id, new_row and new_row.id, key[0], loss))
+            changes.append(Change(status, old_row and old_row.id, new_row and new_row.id, key[0], loss))
     return tuple(changes)
 
 

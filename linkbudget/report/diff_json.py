@@ -52,7 +52,7 @@ def _document(diff, max_margin_loss_db):
         "segments": [{"status": change.status, "old_name": change.old_name, "new_name": change.new_name,
                       "kind": change.kind, "keys": _keys(change.keys),
                       "loss_change_db": _cases(change.loss_change_db, LOSS_CASES)} for change in diff.segments],
-        "rows": [{"status": change.status, "old_id": change.old_id, "new_id": change.new_id, "kind": change.kind,
+        "rows": [{"status": change.status, "old_id": change.old_name, "new_id": change.new_name, "kind": change.kind,
                   "loss_change_db": _cases(change.loss_change_db, LOSS_CASES)} for change in diff.rows],
         "received_change_db": _cases(diff.received_change_db, POWER_CASES),
         "margin_change_db": _cases(diff.margin_change_db, LOSS_CASES),

@@ -119,9 +119,8 @@ def change_cells(change, index, shown):
     def loss(case):
         return "" if index is None else change_text(change.loss_change_db[case][index])
 
-    name = _name(change, shown) if hasattr(change, "keys") else shown(change.id)
-    keys = _keys_text(change.keys, shown) if hasattr(change, "keys") else ""
-    return [change.status, name, change.kind, keys, loss("typ"), loss("worst")]
+    return [change.status, _name(change, shown), change.kind, _keys_text(change.keys, shown), loss("typ"),
+            loss("worst")]
 
 
 CHANGE_HEADERS = ["status", "segment", "kind", "changed keys (old → new)", "Δ loss typ dB", "Δ loss worst dB"]
