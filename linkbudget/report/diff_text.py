@@ -72,9 +72,15 @@ def margin_sentence(diff):
         return "No wavelength in common: margins cannot be compared."
     change = float(diff.margin_change_db["worst"][index])
     where = f" at {nm(diff.wavelength_m[index])}" if diff.wavelength_m.size > 1 else ""
-    what = ("lost" if change < 0 else "gained") if change_text(change) not in ("+0.00", "n/a") else "unchanged"
-    amount = f" {fixed(abs(change))} dB" if what != "unchanged" else ""
-    return (f"Worst-case margin {what}{amount}{where}: {db_text(diff.old_margin_db['worst'][index])} dB → "
+    if math.isnan(change):
+        what = "not comparable (both revisions block the light)"
+    elif math.isinf(change):
+        what = "lost: the new revision blocks the light" if change < 0 else "gained: the old revision blocked the light"
+    elif change_text(change) == "+0.00":
+        what = "unchanged"
+    else:
+        what = f"{'lost' if change < 0 else 'gained'} {fixed(abs(change))} dB"
+    return (f"Worst-case margin {what}{where}: {db_text(diff.old_margin_db['worst'][index])} dB → "
             f"{db_text(diff.new_margin_db['worst'][index])} dB (required "
             f"{fixed(diff.new.result.required_margin_db)} dB).")
 

@@ -305,3 +305,30 @@ def test_readme_states_the_markdown_bounds_and_the_gate():
     assert (f"at most {MAX_LISTED_SEGMENTS} segments, {MARKDOWN_MAX_WAVELENGTHS} wavelengths and "
             f"{MAX_MARKDOWN_CHARS:,} characters") in section
     assert "--max-margin-loss 0.5dB" in section and "linkbudget check configs/ --junit" in section
+
+
+def test_diff_margin_sentence_and_gate_when_light_is_blocked():
+    """A margin of -inf (total internal reflection) in the new revision: the margin is lost, the
+    gate fails; both revisions blocked: not comparable, and no margin lost."""
+    from types import SimpleNamespace
+
+    import numpy as np
+
+    from linkbudget.diff import LinkDiff
+    from linkbudget.report.diff_text import margin_sentence
+
+    def diff_of(old_db, new_db):
+        old, new = np.array(old_db), np.array(new_db)
+        with np.errstate(invalid="ignore"):
+            change = new - old
+        side = SimpleNamespace(result=SimpleNamespace(required_margin_db=3.0))
+        return LinkDiff(side, side, np.array([1310e-9, 1550e-9]), np.array([]), np.array([]), (), (), (),
+                        {}, {"typ": change, "worst": change}, {"worst": old}, {"worst": new})
+
+    blocked = diff_of([10.0, 10.0], [9.0, -np.inf])
+    assert margin_sentence(blocked).startswith("Worst-case margin lost: the new revision blocks the light at 1550 nm")
+    assert blocked.margin_loss_exceeds(100.0)
+    both = diff_of([-np.inf, 10.0], [-np.inf, 10.5])
+    assert both.worst_margin_loss_db == pytest.approx(-0.5)
+    assert not both.margin_loss_exceeds(0.0)
+    assert margin_sentence(both).startswith("Worst-case margin gained 0.50 dB at 1550 nm")
