@@ -105,7 +105,11 @@ def load_sides(first, second=None, *, against=None, allow_paths=()):
         raise GitError(f"diff: '{escaped(second)}': give a range as REV1..REV2 (two dots)")
     revisions = [against] if against is not None else [text or "HEAD" for text in second.split(RANGE_MARK, 1)]
     located = repository_path(first)
-    readers = [GitRevisionReader.at(located.top, revision) for revision in revisions]
+    given = "--against" if against is not None else f"range '{escaped(second)}'"
+    try:
+        readers = [GitRevisionReader.at(located.top, revision) for revision in revisions]
+    except GitError as error:
+        raise GitError(f"{escaped(first)}: {given}: {error}") from None
     sides = [load_side(located.relative, reader=reader) for reader in readers]
     if against is not None:
         sides.append(load_side(first, reader=working_tree))
