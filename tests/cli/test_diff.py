@@ -332,3 +332,13 @@ def test_diff_margin_sentence_and_gate_when_light_is_blocked():
     assert both.worst_margin_loss_db == pytest.approx(-0.5)
     assert not both.margin_loss_exceeds(0.0)
     assert margin_sentence(both).startswith("Worst-case margin gained 0.50 dB at 1550 nm")
+
+
+def test_diff_markdown_escapes_user_text():
+    old_text = OLD_LINK.replace("name: panel", "name: 'pa|nel <script>'")
+    new_text = OLD_LINK.replace("name: panel", 'name: "*bulk*\\x1b[31m"')
+    old = load_side("l.yaml", reader=MemoryReader({"l.yaml": old_text}))
+    new = load_side("l.yaml", reader=MemoryReader({"l.yaml": new_text}))
+    text = render_markdown(compare(old, new))
+    assert "| renamed | pa\\|nel &lt;script&gt; → \\*bulk\\*\\\\x1b\\[31m | connector |" in text
+    assert "<script>" not in text and "\x1b" not in text
