@@ -244,13 +244,14 @@ def _row_keys(rows, renames=None):
     return keyed
 
 
-def _own_row_key(name, rows):
-    return next((key for key in rows if key[0] in (SEGMENT_ROW, COATING_ROW) and key[1] == (name,)), None)
+def _own_rows(keyed):
+    """segment name -> its own row (a ``segment`` or ``coating`` row), from :func:`_row_keys`."""
+    return {origin[0]: row for (kind, origin, _), row in keyed.items() if kind in (SEGMENT_ROW, COATING_ROW)}
 
 
 def _loss_change(old_row, new_row, old_index, new_index):
     def loss(row, index, case):
-        return 0.0 if row is None else np.asarray(row.loss_db[case], dtype=float)[index]
+        return np.zeros(len(index)) if row is None else np.asarray(row.loss_db[case], dtype=float)[index]
 
     with np.errstate(invalid="ignore"):
         return {case: loss(new_row, new_index, case) - loss(old_row, old_index, case) for case in LOSS_CASES}
@@ -271,13 +272,14 @@ def _common_wavelengths(old_m, new_m):
 def _segment_changes(old, new, renames, old_rows, new_rows, old_index, new_index):
     old_entries, new_entries = _chain_entries(old), _chain_entries(new)
     back = {new_name: old_name for old_name, new_name in renames.items()}
+    old_own, new_own = _own_rows(old_rows), _own_rows(new_rows)
     changes = []
     for segment in new.link.segments:
         old_name = back.get(segment.name, segment.name if segment.name in old_entries else None)
         keys = () if old_name is None else key_changes(old_entries[old_name], new_entries[segment.name],
                                                        ignore=("name",))
-        old_row = None if old_name is None else old_rows.get(_own_row_key(segment.name, old_rows))
-        loss = _loss_change(old_row, new_rows.get(_own_row_key(segment.name, new_rows)), old_index, new_index)
+        old_row = None if old_name is None else old_own.get(segment.name)
+        loss = _loss_change(old_row, new_own.get(segment.name), old_index, new_index)
         if old_name is None:
             status = ADDED
         elif old_name != segment.name:
@@ -287,7 +289,7 @@ def _segment_changes(old, new, renames, old_rows, new_rows, old_index, new_index
         changes.append(Change(status, old_name, segment.name, segment.kind, loss, keys))
     for segment in old.link.segments:
         if segment.name not in renames and segment.name not in new_entries:
-            loss = _loss_change(old_rows.get(_own_row_key(segment.name, old_rows)), None, old_index, new_index)
+            loss = _loss_change(old_own.get(segment.name), None, old_index, new_index)
             changes.append(Change(REMOVED, segment.name, None, segment.kind, loss))
     return tuple(changes)
 
