@@ -218,18 +218,19 @@ def _chain_entries(side):
 
 def find_renames(old_entries, new_entries):
     """old name -> new name for the segments only one side names whose written keys, ``name``
-    aside, are identical (in chain order, each at most once)."""
-    def unnamed(entry):
-        return {path: text for path, text in entry.items() if path != "name"}
+    aside, are identical (in chain order, each at most once; linear in the chain's length)."""
+    def signature(entry):
+        return tuple(sorted((path, text) for path, text in entry.items() if path != "name"))
 
-    gone = [name for name in old_entries if name not in new_entries]
-    came = [name for name in new_entries if name not in old_entries]
+    came = {}
+    for name, entry in new_entries.items():
+        if name not in old_entries:
+            came.setdefault(signature(entry), []).append(name)
     renames = {}
-    for old_name in gone:
-        match = next((new_name for new_name in came if new_name not in renames.values()
-                      and unnamed(new_entries[new_name]) == unnamed(old_entries[old_name])), None)
-        if match is not None:
-            renames[old_name] = match
+    for name, entry in old_entries.items():
+        candidates = came.get(signature(entry)) if name not in new_entries else None
+        if candidates:
+            renames[name] = candidates.pop(0)
     return renames
 
 
