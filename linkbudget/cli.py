@@ -73,18 +73,23 @@ def _evaluated(path, allow_paths, required_margin_db):
         _fail_input(str(error))
 
 
-def _margin_override(text):
+def _ratio_option(option, text):
+    """The dB value of a margin option (``None`` when not given); must be >= 0 dB."""
     if text is None:
         return None
     from linkbudget.units import UnitError, parse_quantity
 
     try:
-        margin_db = parse_quantity(text, "ratio")
+        value_db = parse_quantity(text, "ratio")
     except UnitError as error:
-        _fail_input(f"--min-margin: {error}{format_hint(error.hint)}")
-    if margin_db < 0:
-        _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
-    return margin_db
+        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
+    if not value_db >= 0:
+        _fail_input(f"{option}: a margin is >= 0 dB, got {text!r}")
+    return value_db
+
+
+def _margin_override(text):
+    return _ratio_option("--min-margin", text)
 
 
 def _version(value: bool):
@@ -157,7 +162,77 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    text = _report_text(result, output_format)
+    _write_or_print(_report_text(result, output_format), output, force, protected)
+
+
+class ReportFormat(str, Enum):
+    """The formats of ``check`` and ``diff``."""
+
+    text = "text"
+    json = "json"
+    markdown = "markdown"
+
+
+@app.command(cls=_Command)
+def check(
+    links: Annotated[list[str], typer.Argument(
+        metavar="LINK", help="Link files, folders (their .yaml/.yml files), glob patterns, or - for standard input.")],
+    min_margin: Annotated[str | None, typer.Option(
+        "--min-margin", metavar="MARGIN",
+        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+    ] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Report format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write the report to this file.")
+    ] = None,
+    junit: Annotated[
+        Path | None, typer.Option("--junit", metavar="FILE", help="Also write JUnit XML: one test case per link.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
+    allow_path: AllowPath = None,
+):
+    """The CI gate: one line per link, exit 0 only if every link closes.
+
+    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    """
+    import time
+
+    from linkbudget.config import ConfigError
+    from linkbudget.engine import evaluate
+    from linkbudget.inputs import expand, load_argument
+    from linkbudget.report import check as reports
+
+    required = _margin_override(min_margin)
+    outcomes, protected = [], []
+    streaming = output is None and output_format is ReportFormat.text
+    for item in expand(links):
+        started = time.perf_counter()
+        try:
+            loaded = load_argument(item, allow_path or ())
+            protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
+            outcome = reports.CheckOutcome(item.name, evaluate(loaded, required_margin_db=required),
+                                           seconds=time.perf_counter() - started)
+        except ConfigError as error:
+            outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
+        outcomes.append(outcome)
+        if streaming:
+            typer.echo(outcome.line)
+        if outcome.error is not None:
+            typer.echo(outcome.error, err=True)
+    if streaming:
+        typer.echo(reports.check_summary(*reports.counts(outcomes)))
+    else:
+        render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
+                  ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
+        _write_or_print(render(outcomes), output, force, protected)
+    if junit is not None:
+        _write_or_print(reports.render_junit(outcomes), junit, force, protected)
+    _, _, fails, broken = reports.counts(outcomes)
+    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+def _write_or_print(text, output, force, protected):
+    """``text`` (a string or its pieces) to standard output, or atomically to the file ``output``."""
     if output is None:
         sys.stdout.writelines([text] if isinstance(text, str) else text)
         return
@@ -175,37 +250,68 @@ def _write_output(output, text, force, protected=()):
 
 
 @app.command(cls=_Command)
-def check(
-    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
-    min_margin: Annotated[str | None, typer.Option(
-        "--min-margin", metavar="MARGIN",
-        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+def diff(
+    first: Annotated[str, typer.Argument(metavar="OLD|LINK", help="The old link file, or the link to compare.")],
+    second: Annotated[str | None, typer.Argument(
+        metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
+    against: Annotated[str | None, typer.Option(
+        "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    max_margin_loss: Annotated[str | None, typer.Option(
+        "--max-margin-loss", metavar="DB",
+        help="Exit 1 when the worst-case margin falls by more than this at any wavelength, e.g. '0.5dB'.")] = None,
     allow_path: AllowPath = None,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes.
+    """What a change did to a link: two files, or one file at two git revisions.
 
-    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    Exit status 0 compared (and the gate, if given, passed), 1 --max-margin-loss exceeded,
+    2 the input is wrong (a file, a revision, no repository), 3 a bug.
     """
-    from linkbudget.config import ConfigError, load_link
-    from linkbudget.engine import evaluate
-    from linkbudget.report.summary import check_error_line, check_line, check_summary
+    from linkbudget.config import ConfigError
+    from linkbudget.diff import compare, load_sides
+    from linkbudget.gitread import GitError
 
-    required = _margin_override(min_margin)
-    closes = fails = broken = 0
-    for path in links:
-        try:
-            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
-        except ConfigError as error:
-            broken += 1
-            typer.echo(check_error_line(path), err=False)
-            typer.echo(str(error), err=True)
-            continue
-        typer.echo(check_line(result, path))
-        closes += result.closes
-        fails += not result.closes
-    typer.echo(check_summary(len(links), closes, fails, broken))
-    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+    max_loss_db = _ratio_option("--max-margin-loss", max_margin_loss)
+    try:
+        old, new = load_sides(first, second, against=against, allow_paths=tuple(allow_path or ()))
+    except (GitError, ConfigError) as error:
+        _fail_input(str(error))
+    found = compare(old, new)
+    if output is None and output_format is ReportFormat.text:
+        from rich.console import Console
+
+        from linkbudget.report.diff_text import render_terminal
+
+        Console().print(render_terminal(found, max_loss_db))
+    else:
+        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force,
+                        [side.link_path for side in (old, new) if side.link_path] + [
+                            path for side in (old, new) for path in side.link.referenced_files])
+    raise typer.Exit(EXIT_FAILS if max_loss_db is not None and found.margin_loss_exceeds(max_loss_db) else EXIT_OK)
+
+
+def _diff_text(found, output_format, max_loss_db):
+    if output_format is ReportFormat.json:
+        from linkbudget.report.diff_json import diff_json_chunks
+
+        return diff_json_chunks(found, max_loss_db)
+    if output_format is ReportFormat.markdown:
+        from linkbudget.report.diff_text import render_markdown
+
+        return render_markdown(found, max_loss_db)
+    import io
+
+    from rich.console import Console
+
+    from linkbudget.report.diff_text import render_terminal
+
+    console = Console(file=io.StringIO(), width=120)
+    console.print(render_terminal(found, max_loss_db))
+    return console.file.getvalue()
 
 
 @app.command(cls=_Command)
