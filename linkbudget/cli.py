@@ -134,19 +134,54 @@ def run(
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
-    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
     min_margin: Annotated[
         str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
+    plot: Annotated[Path | None, typer.Option(
+        "--plot", metavar="FILE",
+        help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
+             'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     allow_path: AllowPath = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict.
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
+    _check_plot_option(plot, output)
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
-    _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
+    protected = [link, *loaded.referenced_files]
+    if plot is not None:
+        _write_plot(result, plot, force, protected)
+    _emit(result, output_format, output, force, protected)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
+
+
+def _check_plot_option(plot, output):
+    """Before any work: ``--plot`` names a PNG or SVG file other than ``--output``, and matplotlib is there."""
+    if plot is None:
+        return
+    from linkbudget.report.plots import PLOT_SUFFIXES, PlotsUnavailable, require_matplotlib
+
+    if plot.suffix.lower() not in PLOT_SUFFIXES:
+        _fail_input(f"--plot: {plot}: give a file name ending in {' or '.join(PLOT_SUFFIXES)}")
+    if output is not None and plot.resolve() == output.resolve():
+        _fail_input(f"--plot: {plot}: the same file as --output; give two names")
+    try:
+        require_matplotlib()
+    except PlotsUnavailable as missing:
+        _fail_input(f"--plot: {missing}")
+
+
+def _write_plot(result, plot, force, protected):
+    from linkbudget.report.output import OutputError, write_atomic
+    from linkbudget.report.plots import figure, plot_bytes, run_panels
+
+    picture = plot_bytes(figure(run_panels(result)), plot.suffix[1:].lower())
+    try:
+        write_atomic(plot, picture, overwrite=force, protected=protected)
+    except OutputError as error:
+        _fail_input(str(error))
 
 
 def _emit(result, output_format, output, force, protected):
