@@ -48,6 +48,7 @@ class Format(str, Enum):
     json = "json"
     markdown = "markdown"
     csv = "csv"
+    html = "html"
 
 
 #: The option of every command that loads links: a folder outside the project a link may read from.
@@ -101,9 +102,14 @@ def _root(
     """Optical link budgets from physics and datasheets, kept as YAML."""
 
 
-def _report_text(result, output_format):
+def _report_text(result, output_format, link=None):
     """The report in one of the file formats (terminal output as plain text): a string, or for
-    JSON an iterator of its pieces, so that a large sweep is streamed, never one string."""
+    JSON an iterator of its pieces, so that a large sweep is streamed, never one string. The HTML
+    page shows the SHA-256 of the ``link`` file."""
+    if output_format is Format.html:
+        from linkbudget.report.html import file_sha256, render
+
+        return render(result, input_sha256=file_sha256(link))
     if output_format is Format.json:
         from linkbudget.report.json import json_chunks
 
@@ -153,7 +159,7 @@ def run(
     protected = [link, *loaded.referenced_files]
     if plot is not None:
         _write_plot(result, plot, force, protected)
-    _emit(result, output_format, output, force, protected)
+    _emit(result, output_format, output, force, protected, link)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
 
@@ -184,7 +190,7 @@ def _write_plot(result, plot, force, protected):
         _fail_input(str(error))
 
 
-def _emit(result, output_format, output, force, protected):
+def _emit(result, output_format, output, force, protected, link=None):
     if output is None and output_format is Format.terminal:
         from rich.console import Console
 
@@ -192,7 +198,7 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    text = _report_text(result, output_format)
+    text = _report_text(result, output_format, link)
     if output is None:
         sys.stdout.writelines([text] if isinstance(text, str) else text)
         return
