@@ -16,16 +16,9 @@ import html
 from dataclasses import dataclass
 
 from linkbudget import __version__
+from linkbudget.report import summary
 from linkbudget.report.markdown import shown_wavelengths
-from linkbudget.report.summary import (
-    db_text,
-    margin_sentence,
-    overload_sentence,
-    parties_sentence,
-    row_note,
-    verdict,
-    wavelength_status,
-)
+from linkbudget.report.summary import db_text
 from linkbudget.text import escaped, nm
 
 #: Most wavelengths the page's margin table lists (chosen as the Markdown table chooses them).
@@ -95,9 +88,10 @@ def _table(headers, rows, *, table_id, text_columns):
 def verdict_section(result):
     """The verdict, in words, and the sentences on margin and overload."""
     state = "closes" if result.closes else "fails"
-    lines = [f'<p><span class="verdict {state}" id="verdict">{verdict(result)}</span></p>']
-    lines += [f"<p>{text(words)}</p>" for words in (result.description, parties_sentence(result, str)) if words]
-    lines += [f"<p>{text(sentence)}</p>" for sentence in (margin_sentence(result), overload_sentence(result))]
+    lines = [f'<p><span class="verdict {state}" id="verdict">{summary.verdict(result)}</span></p>']
+    about = (result.description, summary.parties_sentence(result, str))
+    sentences = (summary.margin_sentence(result), summary.overload_sentence(result))
+    lines += [f"<p>{text(words)}</p>" for words in (*about, *sentences) if words]
     return Section("Verdict", "verdict-section", "\n".join(lines))
 
 
@@ -110,7 +104,7 @@ def budget_section(result):
         [str(number + 1), text(row.name), text(row.shown_kind), db_text(result.loss_db["typ"][number, index]),
          db_text(result.loss_db["worst"][number, index]), db_text(result.cumulative_loss_db["worst"][number, index]),
          db_text(result.power_after_dbm["typ"][number, index], True),
-         db_text(result.power_after_dbm["worst"][number, index], True), text(row_note(row, index))]
+         db_text(result.power_after_dbm["worst"][number, index], True), text(summary.row_note(row, index))]
         for number, row in enumerate(result.rows)]
     table = _table(["#", "segment", "kind", "loss typ dB", "loss worst dB", "total loss worst dB",
                     "power after typ dBm", "power after worst dBm", "note"], rows, table_id="budget", text_columns=3)
@@ -123,7 +117,7 @@ def budget_section(result):
 def margin_section(result):
     """Received power and margin per wavelength (all of them up to :data:`HTML_MAX_WAVELENGTHS`)."""
     shown = shown_wavelengths(result, HTML_MAX_WAVELENGTHS)
-    status = wavelength_status(result)
+    status = summary.wavelength_status(result)
     rows = [[nm(result.wavelength_m[i]), db_text(result.received_dbm["typ"][i], True),
              db_text(result.received_dbm["worst"][i], True), db_text(result.received_dbm["best"][i], True),
              db_text(result.margin_db["typ"][i], True), db_text(result.margin_db["worst"][i], True),

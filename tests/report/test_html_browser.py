@@ -47,9 +47,9 @@ def rendered(page, tmp_path):
 def page_requests(net_log):
     """The URLs of the requests in a Chromium network log made by a page opened from a file."""
     names = {number: name for name, number in net_log["constants"]["logEventTypes"].items()}
-    return [event["params"]["url"] for event in net_log["events"]
-            if names[event["type"]] == "URL_REQUEST_START_JOB" and "url" in event.get("params", {})
-            and "file://" in event["params"].get("site_for_cookies", "") + event["params"].get("network_isolation_key", "")]
+    starts = [event.get("params", {}) for event in net_log["events"] if names[event["type"]] == "URL_REQUEST_START_JOB"]
+    return [params["url"] for params in starts if "url" in params
+            and "file://" in params.get("site_for_cookies", "") + params.get("network_isolation_key", "")]
 
 
 class _Cells(HTMLParser):
