@@ -212,3 +212,15 @@ def test_run_plot_without_the_extra_is_one_clear_line(write_link, tmp_path):
     assert done.returncode == 2
     assert done.stderr.strip() == '--plot: plots need matplotlib: pip install "linkbudget[plot]"'
     assert done.stdout == "" and not (tmp_path / "x.png").exists()
+
+
+@pytest.mark.parametrize("extra", [[], ["--format", "markdown"], ["--format", "json"]])
+def test_run_without_a_plot_never_imports_matplotlib(write_link, extra):
+    """DESIGN.md: heavy modules only in the commands that need them; matplotlib only for a plot."""
+    link = write_link(HAND_LINK.format(axis="wavelength: 1550 nm", first="trunk"))
+    code = ("import sys, atexit; atexit.register(lambda: sys.stderr.write('loaded:' + str('matplotlib' in "
+            "sys.modules))); sys.argv = ['linkbudget', *sys.argv[1:]]; from linkbudget.cli import main; main()")
+    done = subprocess.run([sys.executable, "-c", code, "run", str(link), *extra], capture_output=True, text=True,
+                          timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert done.stderr.endswith("loaded:False")
