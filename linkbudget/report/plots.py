@@ -35,6 +35,7 @@ _CASE_STYLE = {
 }
 _REQUIRED_STYLE = {"color": "black", "linestyle": ":", "linewidth": 1.5}
 _OVERLOAD_STYLE = {"color": "#CC79A7", "linestyle": "-.", "linewidth": 1.5}
+_BLOCKED_STYLE = {"color": "0.3", "linestyle": (0, (1, 4)), "linewidth": 2.0}
 #: A second revision's lines: hollow markers and a thinner line, so two revisions differ in grey too.
 _SECOND_TRACE = {"markerfacecolor": "white", "linewidth": 1.0, "alpha": 0.9}
 #: Most markers drawn on one line of a sweep, so a long band stays legible.
@@ -112,20 +113,35 @@ def _prefixed(label, text):
     return f"{plot_text(label)}: {text}" if label else text
 
 
+def _limit_lines(axes, name, values, labels, style, words, unit):
+    """Horizontal lines at a limit of each result (``None``: the result has none), named ``words``;
+    one unnamed line where every result has the same limit, else one per result under its label."""
+    shared = len(set(values)) == 1
+    for number, (value, label) in enumerate(zip(values, labels, strict=True)):
+        if value is None or (shared and number):
+            continue
+        axes.axhline(value, **{**style, **(_SECOND_TRACE if number else {})}, gid=f"{name}-{number}",
+                     label=(words if shared else _prefixed(label, words)) + f" ({value:.2f} {unit})")
+
+
 def draw_power_levels(axes, traces):
     """The power after each point of the chain, nominal and worst case, of one or more traces,
     with the sensitivity plus the required margin and the overload as horizontal lines."""
     axis_names, positions = chain_positions([trace.names for trace in traces])
+    labels = [trace.label for trace in traces]
     for number, (trace, x) in enumerate(zip(traces, positions, strict=True)):
         extra = _SECOND_TRACE if number else {}
         for case, style in _CASE_STYLE.items():
             axes.plot(x, trace.power_dbm[case], **{**style, **extra, "label": _prefixed(trace.label, style["label"])},
                       gid=f"power-{number}-{case}")
-        axes.axhline(trace.floor_dbm, **_REQUIRED_STYLE, gid=f"floor-{number}",
-                     label=_prefixed(trace.label, f"sensitivity + required margin ({trace.floor_dbm:.2f} dBm)"))
-        if trace.overload_dbm is not None:
-            axes.axhline(trace.overload_dbm, **_OVERLOAD_STYLE, gid=f"overload-{number}",
-                         label=_prefixed(trace.label, f"receiver overload ({trace.overload_dbm:.2f} dBm)"))
+        blocked = np.flatnonzero(np.isneginf(trace.power_dbm["typ"]))
+        if blocked.size:  # the only non-finite power: none past a total internal reflection
+            axes.axvline(x[blocked[0]], **_BLOCKED_STYLE, gid=f"blocked-{number}", label=_prefixed(
+                trace.label, f"total internal reflection at {plot_text(trace.names[blocked[0]])}: no light past it"))
+    _limit_lines(axes, "floor", [trace.floor_dbm for trace in traces], labels, _REQUIRED_STYLE,
+                 "sensitivity + required margin", "dBm")
+    _limit_lines(axes, "overload", [trace.overload_dbm for trace in traces], labels, _OVERLOAD_STYLE,
+                 "receiver overload", "dBm")
     axes.set_xticks(range(len(axis_names)), [plot_text(name) for name in axis_names], rotation=35, ha="right")
     axes.set_xlabel("point along the chain (power after each row)")
     axes.set_ylabel("optical power [dBm]")
@@ -145,8 +161,8 @@ def draw_margin_sweep(axes, results, labels=("",)):
         for case, style in _CASE_STYLE.items():
             axes.plot(wavelength_nm, result.margin_db[case], markevery=every, gid=f"margin-{number}-{case}",
                       **{**style, **extra, "label": _prefixed(label, style["label"])})
-        axes.axhline(result.required_margin_db, **_REQUIRED_STYLE, gid=f"required-{number}",
-                     label=_prefixed(label, f"required margin ({result.required_margin_db:.2f} dB)"))
+    _limit_lines(axes, "required", [result.required_margin_db for result in results], labels, _REQUIRED_STYLE,
+                 "required margin", "dB")
     axes.set_xlabel("wavelength [nm]")
     axes.set_ylabel("margin above sensitivity [dB]")
     axes.set_title("Margin against wavelength")
@@ -191,6 +207,16 @@ def run_panels(result):
     panels = [Panel("power along the chain", lambda axes: draw_power_levels(axes, [Trace.of(result)]))]
     if result.wavelength_m.size > 1:
         panels.append(Panel("margin against wavelength", lambda axes: draw_margin_sweep(axes, [result])))
+    return panels
+
+
+def comparison_panels(old, new, labels=("old", "new")):
+    """The diagrams of two results (two revisions of a link) on shared axes: the power levels of
+    both, and for several wavelengths the margin sweeps of both."""
+    panels = [Panel("power along the chain", lambda axes: draw_power_levels(
+        axes, [Trace.of(old, labels[0]), Trace.of(new, labels[1])]))]
+    if old.wavelength_m.size > 1 or new.wavelength_m.size > 1:
+        panels.append(Panel("margin against wavelength", lambda axes: draw_margin_sweep(axes, [old, new], labels)))
     return panels
 
 

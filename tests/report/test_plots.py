@@ -132,19 +132,53 @@ TAP = """\
 
 def test_two_revisions_on_one_diagram():
     """Two results (a comparison) share one axis: a segment only the new one has sits in its place."""
-    old = hand_result()
-    text = HAND_LINK.format(axis="wavelength: 1550 nm", first="trunk")
+    old = hand_result("channels: [1310 nm, 1550 nm]")
+    text = HAND_LINK.format(axis="channels: [1310 nm, 1550 nm]", first="trunk")
     new = linkbudget.evaluate(linkbudget.load(text.replace("  - name: panel\n", TAP + "  - name: panel\n")))
-    axes = drawn([plots.Panel("both", lambda a: plots.draw_power_levels(
-        a, [plots.Trace.of(old, "old"), plots.Trace.of(new, "new")]))]).axes[0]
-    assert [label.get_text() for label in axes.get_xticklabels()] == ["source", "trunk", "tap", "panel", "allowance"]
-    assert_allclose(line(axes, "power-0-worst").get_xdata(), [0, 1, 3, 4])
-    assert_allclose(line(axes, "power-0-worst").get_ydata(), WORST_DBM, atol=1e-12)
+    levels, sweep = drawn(plots.comparison_panels(old, new)).axes
+    assert [label.get_text() for label in levels.get_xticklabels()] == ["source", "trunk", "tap", "panel", "allowance"]
+    assert_allclose(line(levels, "power-0-worst").get_xdata(), [0, 1, 3, 4])
+    assert_allclose(line(levels, "power-0-worst").get_ydata(), WORST_DBM, atol=1e-12)
     new_worst = WORST_DBM[:2] + [value - 0.5 for value in [WORST_DBM[1], *WORST_DBM[2:]]]
-    assert_allclose(line(axes, "power-1-worst").get_xdata(), [0, 1, 2, 3, 4])
-    assert_allclose(line(axes, "power-1-worst").get_ydata(), new_worst, atol=1e-12)
-    legend = [entry.get_text() for entry in axes.get_legend().get_texts()]
+    assert_allclose(line(levels, "power-1-worst").get_xdata(), [0, 1, 2, 3, 4])
+    assert_allclose(line(levels, "power-1-worst").get_ydata(), new_worst, atol=1e-12)
+    legend = [entry.get_text() for entry in levels.get_legend().get_texts()]
     assert "old: worst case" in legend and "new: worst case" in legend
+    # limits both revisions share are drawn once, unnamed
+    assert "sensitivity + required margin (-17.00 dBm)" in legend and "receiver overload (-1.00 dBm)" in legend
+    assert not [found for found in levels.get_lines() if found.get_gid() in ("floor-1", "overload-1")]
+    assert_allclose(line(sweep, "margin-1-worst").get_ydata(), [new_worst[-1] + 20.0] * 2, atol=1e-9)
+    # the second revision's lines differ from the first's without colour: hollow markers, thinner line
+    looks = [(found.get_markerfacecolor(), found.get_linewidth())
+             for found in (line(levels, "power-0-worst"), line(levels, "power-1-worst"))]
+    assert looks[0] != looks[1]
+
+
+def test_limits_that_differ_between_revisions_are_drawn_for_each():
+    old = hand_result()
+    new = linkbudget.evaluate(linkbudget.load(HAND_LINK.format(axis="wavelength: 1550 nm", first="trunk")
+                                              .replace("required_margin: 3 dB", "required_margin: 4.5 dB")))
+    axes = drawn(plots.comparison_panels(old, new)).axes[0]
+    assert_allclose(line(axes, "floor-0").get_ydata(), [FLOOR_DBM] * 2)
+    assert_allclose(line(axes, "floor-1").get_ydata(), [-20.0 + 4.5] * 2)
+    legend = [entry.get_text() for entry in axes.get_legend().get_texts()]
+    assert "new: sensitivity + required margin (-15.50 dBm)" in legend and "receiver overload (-1.00 dBm)" in legend
+
+
+def test_total_internal_reflection_is_marked_where_the_light_stops():
+    """A face past the critical angle (fibre n = 1.45 into n = 1.0 at 60 degrees; arcsin(1/1.45) = 43.6
+    degrees, Snell's law) passes no light: the line stops and a vertical mark names the face."""
+    from tests.report.test_finite import link_text
+
+    result = linkbudget.evaluate(linkbudget.load(link_text(index="1.0", extra="    angle: 60 deg\n")))
+    axes = drawn(plots.run_panels(result)).axes[0]
+    powers = line(axes, "power-0-worst").get_ydata()
+    first_dark = int(np.flatnonzero(np.isneginf(powers))[0])
+    assert np.isfinite(powers[:first_dark]).all() and first_dark >= 1
+    assert_allclose(line(axes, "blocked-0").get_xdata(), [first_dark, first_dark])
+    name = axes.get_xticklabels()[first_dark].get_text()
+    legend = [entry.get_text() for entry in axes.get_legend().get_texts()]
+    assert f"total internal reflection at {name}: no light past it" in legend and name == "lead → slab"
 
 
 def test_chain_positions_keeps_removed_names():
