@@ -7,10 +7,15 @@ Figures are built as :class:`matplotlib.figure.Figure` objects drawn by the Agg 
 through pyplot, so no window, display or global state is involved.
 
 Every plot is readable in greyscale and by colour-blind readers: the nominal and worst-case lines
-differ by line style and marker, the limits by their own styles, and the colours come from the
-Okabe-Ito palette (Okabe and Ito, "Color Universal Design", 2008), chosen for colour-blind
-readers. Each drawing function takes an axes and one or more results, so a comparison of two
-revisions draws both on one diagram (:func:`draw_power_levels` with two :class:`Trace` s).
+differ by line style and marker, the limits by their own styles, a second result by hollow
+markers and thinner lines, and the colours come from the Okabe-Ito palette chosen for colour-blind
+readers (M. Okabe and K. Ito, "Color Universal Design (CUD): how to make figures and presentations
+that are friendly to colorblind people", 2008; the hex values from memory).
+
+Each drawing function takes an axes and one or more results, so a comparison of two revisions
+draws both on one diagram: :func:`run_panels` gives the diagrams of one run,
+:func:`comparison_panels` those of two; :func:`figure` stacks panels into one figure and
+:func:`plot_bytes` / :func:`inline_svg` write it.
 """
 
 import difflib

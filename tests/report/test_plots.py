@@ -185,6 +185,10 @@ def test_chain_positions_keeps_removed_names():
     axis, positions = plots.chain_positions([("source", "a", "gone", "b"), ("source", "a", "b", "new")])
     assert axis == ["source", "a", "gone", "b", "new"]
     assert [list(p) for p in positions] == [[0, 1, 2, 3], [0, 1, 3, 4]]
+    # a segment moved along the chain keeps one place (its old one); the new line visits it out of order
+    axis, positions = plots.chain_positions([("source", "a", "b", "c"), ("source", "c", "a", "b")])
+    assert axis == ["source", "a", "b", "c"]
+    assert [list(p) for p in positions] == [[0, 1, 2, 3], [0, 3, 1, 2]]
 
 
 def test_png_and_svg_bytes():
