@@ -171,7 +171,8 @@ def _emit(result, output_format, output, force, protected):
 
 @app.command(cls=_Command)
 def check(
-    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
+    links: Annotated[list[Path], typer.Argument(
+        metavar="LINK", help="One or more link files, or folders: every link and part file under them.")],
     min_margin: Annotated[str | None, typer.Option(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
@@ -180,17 +181,23 @@ def check(
 ):
     """The CI gate: one line per link, exit 0 only if every link closes.
 
+    A folder stands for the links under it, and its part files are checked too.
     Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
     from linkbudget.report.summary import check_error_line, check_line, check_summary
+    from linkbudget.usage import link_paths
 
     required = _margin_override(min_margin)
     closes = fails = broken = 0
-    for path in links:
+    paths, loaded_links = link_paths(links), []
+    if not paths:
+        _fail_input(f"no link files in {', '.join(str(path) for path in links)}")
+    for path in paths:
         try:
-            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
+            loaded_links.append(load_link(path, allow_path or ()))
+            result = evaluate(loaded_links[-1], required_margin_db=required)
         except ConfigError as error:
             broken += 1
             typer.echo(check_error_line(path), err=False)
@@ -199,8 +206,64 @@ def check(
         typer.echo(check_line(result, path))
         closes += result.closes
         fails += not result.closes
-    typer.echo(check_summary(len(links), closes, fails, broken))
+    typer.echo(check_summary(len(paths), closes, fails, broken))
+    broken += _checked_part_files(links, loaded_links, allow_path or ())
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+def _checked_part_files(folders, loaded_links, allow_paths):
+    """Check the part files under ``folders`` and say which parts no link uses; the number that have errors."""
+    from linkbudget.report.summary import check_error_line
+    from linkbudget.report.usage import part_files_summary, unused_lines
+    from linkbudget.usage import checked_part_file, part_files_in, unused
+
+    checked = [checked_part_file(path, allow_paths) for path in part_files_in(folders)]
+    for part_file in checked:
+        if part_file.problems:
+            typer.echo(check_error_line(part_file.path))
+            typer.echo("\n".join(problem.render() for problem in part_file.problems), err=True)
+    unused_parts = unused(checked, loaded_links)
+    for line in unused_lines(unused_parts, ", ".join(map(str, folders))):
+        typer.echo(line)
+    broken = sum(bool(part_file.problems) for part_file in checked)
+    if checked:
+        typer.echo(part_files_summary(len(checked), broken, sum(len(names) for _, names in unused_parts)))
+    return broken
+
+
+@app.command(cls=_Command)
+def uses(
+    part: Annotated[str, typer.Argument(metavar="PART", help="The name of a part.")],
+    folder: Annotated[Path, typer.Argument(metavar="FOLDER", help="The folder to look in (default: here).")
+                      ] = Path("."),
+    allow_path: AllowPath = None,
+):
+    """Where a part is used: every link under FOLDER that uses PART (or a part built on it), then the
+    parts no link there uses.
+
+    Exit status 0 done, 2 PART is in no part file there and no link uses it, or an input is wrong.
+    """
+    from linkbudget.report.usage import unused_lines, use_line, uses_heading
+    from linkbudget.usage import survey, unused, users
+
+    if not folder.is_dir():
+        _fail_input(f"{folder}: not a folder")
+    found = survey(folder, allow_path or ())
+    listed = users(part, found.loaded)
+    typer.echo(uses_heading(part, len(listed), len({path for path, _ in listed}), folder))
+    for path, use in listed:
+        typer.echo(use_line(path, use, part))
+    for line in unused_lines(unused(found.part_files, [link for _, link in found.loaded]), folder):
+        typer.echo(line)
+    for path, error in found.broken:
+        typer.echo(f"{path}: not loaded, so not searched:\n{error}", err=True)
+    for part_file in found.part_files:
+        if part_file.problems:
+            typer.echo("\n".join(problem.render() for problem in part_file.problems), err=True)
+    defined = any(part in part_file.names for part_file in found.part_files)
+    if not listed and not defined:
+        _fail_input(f"no part '{part}' in the part files under {folder}")
+    raise typer.Exit(EXIT_INPUT if found.broken or any(f.problems for f in found.part_files) else EXIT_OK)
 
 
 @app.command(cls=_Command)

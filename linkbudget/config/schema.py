@@ -86,6 +86,8 @@ class LinkSpec(Strict):
     source: Source
     receiver: Receiver
     chain: list[Any] = Field(min_length=1)
+    #: Folders searched for parts after the link's own (see :mod:`linkbudget.config.parts`).
+    part_folders: list[str] | None = None
 
     @model_validator(mode="after")
     def _one_axis(self):

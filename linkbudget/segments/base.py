@@ -5,12 +5,13 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
+from pydantic import PrivateAttr
 
 from linkbudget.config.fields import InputProblem, SpreadBase, Strict, range_notes, spread
 from linkbudget.config.ranges import RANGES, mode_size_problem
 from linkbudget.segments.coupling import TILT_DIRECTION_COSINES
 from linkbudget.segments.roles import GUIDES
-from linkbudget.segments.rows import segment_row
+from linkbudget.segments.rows import PartOrigin, segment_row
 
 #: The spread types the segment kinds share (one definition each), by their valid range.
 JointLossSpread = spread("ratio", bounds=RANGES["joint loss"])
@@ -149,6 +150,12 @@ class SegmentSpec(Strict):
     """
 
     name: str | None = None
+    _part_origin: PartOrigin | None = PrivateAttr(default=None)
+
+    @property
+    def part_origin(self):
+        """The :class:`~linkbudget.segments.rows.PartOrigin` of a segment made from a part, else ``None``."""
+        return self._part_origin
 
     def resolve(self, wavelength_m, files):
         """Check what needs the wavelength axis or other files (materials); return the resolved
