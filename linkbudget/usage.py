@@ -18,7 +18,7 @@ from linkbudget.yamlread import ReadError, read_text
 #: How the name of a file that may be a link or a part file ends.
 YAML_SUFFIXES = (".yaml", ".yml")
 #: Top-level keys that only a link file holds.
-_LINK_KEYS = ("chain", "source", "receiver")
+_LINK_KEYS = ("title", "chain", "receiver")
 
 
 def yaml_files_under(folder):

@@ -337,7 +337,8 @@ class PartLibrary:
                 folder.broken.append(error)
                 continue
             except PathRefused as error:
-                folder.broken.append(ConfigError([Problem(shown_file(path), None, (), str(error), error.hint)]))
+                shown = shown_file(posixpath.join(str(self.files.folder), path))
+                folder.broken.append(ConfigError([Problem(shown, None, (), str(error), error.hint)]))
                 continue
             for part_name in part_file.parts:
                 folder.parts.setdefault(part_name, []).append(part_file)
