@@ -187,12 +187,12 @@ def check(
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
     from linkbudget.report.summary import check_error_line, check_line, check_summary
-    from linkbudget.usage import link_paths
+    from linkbudget.usage import link_paths, part_files_in
 
     required = _margin_override(min_margin)
     closes = fails = broken = 0
     paths, loaded_links = link_paths(links), []
-    if not paths:
+    if not paths and not part_files_in(links):
         _fail_input(f"no link files in {', '.join(str(path) for path in links)}")
     for path in paths:
         try:
@@ -206,7 +206,8 @@ def check(
         typer.echo(check_line(result, path))
         closes += result.closes
         fails += not result.closes
-    typer.echo(check_summary(len(paths), closes, fails, broken))
+    if paths:
+        typer.echo(check_summary(len(paths), closes, fails, broken))
     broken += _checked_part_files(links, loaded_links, allow_path or ())
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 
@@ -222,8 +223,8 @@ def _checked_part_files(folders, loaded_links, allow_paths):
         if part_file.problems:
             typer.echo(check_error_line(part_file.path))
             typer.echo("\n".join(problem.render() for problem in part_file.problems), err=True)
-    unused_parts = unused(checked, loaded_links)
-    for line in unused_lines(unused_parts, ", ".join(map(str, folders))):
+    unused_parts = unused(checked, loaded_links) if loaded_links else []
+    for line in unused_lines(unused_parts, "checked"):
         typer.echo(line)
     broken = sum(bool(part_file.problems) for part_file in checked)
     if checked:
@@ -253,7 +254,7 @@ def uses(
     typer.echo(uses_heading(part, len(listed), len({path for path, _ in listed}), folder))
     for path, use in listed:
         typer.echo(use_line(path, use, part))
-    for line in unused_lines(unused(found.part_files, [link for _, link in found.loaded]), folder):
+    for line in unused_lines(unused(found.part_files, [link for _, link in found.loaded]), f"under {folder}"):
         typer.echo(line)
     for path, error in found.broken:
         typer.echo(f"{path}: not loaded, so not searched:\n{error}", err=True)

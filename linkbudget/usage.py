@@ -41,22 +41,23 @@ def holds_link(path):
 
 
 def link_paths(paths):
-    """The link files ``check`` evaluates for ``paths``: a file as given, a folder as the links under
-    it (:func:`yaml_files_under`, without part files and other YAML files such as materials)."""
+    """The link files ``check`` evaluates for ``paths``: a file as given (unless a part file), a folder
+    as the links under it (:func:`yaml_files_under`, without part files and other YAML files such as
+    materials)."""
     expanded = []
     for path in map(Path, paths):
         if path.is_dir():
             expanded += [found for found in yaml_files_under(path)
                          if not is_part_file(found.name) and holds_link(found)]
-        else:
+        elif not is_part_file(path.name):
             expanded.append(path)
     return expanded
 
 
 def part_files_in(paths):
-    """The part files under the folders among ``paths``."""
-    return [found for path in map(Path, paths) if path.is_dir()
-            for found in yaml_files_under(path) if is_part_file(found.name)]
+    """The part files among ``paths`` and under the folders among them."""
+    return [found for path in map(Path, paths)
+            for found in (yaml_files_under(path) if path.is_dir() else [path]) if is_part_file(found.name)]
 
 
 @dataclass

@@ -325,6 +325,9 @@ class PartLibrary:
         """The :class:`_Folder` ``written``, or ``None`` (its problem recorded) if it cannot be listed."""
         try:
             names = self.files.reader.file_names(written, self.files.folder)
+        except AttributeError:  # a reader that reads files but cannot list a folder
+            self.problems.append(where(f"part folder '{written}': this reader cannot list a folder's files", None))
+            return None
         except PathRefused as error:
             self.problems.append(where(f"part folder '{written}': {error}", error.hint))
             return None

@@ -20,11 +20,12 @@ def uses_heading(part_name, count, links, folder):
     return f"part '{escaped(part_name)}' is used {count} time(s) in {links} link(s) under {escaped(folder)}:"
 
 
-def unused_lines(unused_parts, folder):
-    """The parts no link under ``folder`` uses, one part file a line (``[]`` when every part is used)."""
+def unused_lines(unused_parts, links):
+    """The parts no one of ``links`` (said in words) uses, one part file a line (``[]`` when every
+    part is used)."""
     if not unused_parts:
         return []
-    return [f"used by no link under {escaped(folder)}:"] + [
+    return [f"used by no link {escaped(links)}:"] + [
         f"  {escaped(path)}: {', '.join(escaped(name) for name in names)}" for path, names in unused_parts]
 
 

@@ -140,3 +140,14 @@ def test_a_part_file_linked_from_outside_the_repository_is_refused(repo, tmp_pat
     assert result.exit_code == 2
     assert (f"{repo}/links/shadow.parts.yaml: (top level): path 'shadow.parts.yaml' is outside the project"
             in result.stderr)
+
+
+def test_check_a_part_file_given_alone_checks_its_parts(repo):
+    broken = repo / "parts" / "windows.parts.yaml"
+    broken.write_text(broken.read_text(encoding="utf-8").replace("thickness: 3 mm", "thicknes: 3 mm"),
+                      encoding="utf-8")
+    result = run_cli("check", broken)
+    assert result.exit_code == 2
+    assert result.stdout.splitlines() == [f"ERROR  {broken}: input error",
+                                          "1 part file(s): 1 with input errors, 0 part(s) used by no link checked"]
+    assert f"{broken}:9:5: parts.housing-window.thicknes: unknown key 'thicknes'" in result.stderr
