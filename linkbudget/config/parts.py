@@ -206,6 +206,7 @@ class PartUse:
 
     @property
     def files(self):
+        """The part files the use depends on, each once, as the reader names them."""
         return tuple(dict.fromkeys(part.file for part in self.parts))
 
 
@@ -434,7 +435,7 @@ class PartLibrary:
     def segment_files(self, written):
         """The :class:`LinkFiles` of a segment made from parts: those of the file writing its first file key."""
         owners = [written.owner(key) for key in _FILE_KEYS if key in written.keys()]
-        return self.files_for(owners[0] if owners else written.owner(PART_KEY))
+        return self.files_for(owners[0] if owners else written)
 
     def use(self, item, index, positions):
         """``(segment or None, problems, written, files, part use)`` of the chain entry ``item`` at
@@ -457,14 +458,10 @@ class PartLibrary:
         return segment, [], at, self.segment_files(at), use
 
     def _paths(self, parts):
+        """The resolved files of the machine the part files of ``parts`` are (read through the link's files)."""
         files = {part.file for part in parts}
-        return tuple(source.path for source in self._sources() if source.path is not None
-                     and shown_file(source.name) in files)
-
-    def _sources(self):
-        yield from self.files.sources.values()
-        for files in self._files_by_folder.values():
-            yield from files.sources.values()
+        return tuple(source.path for source in self.files.sources.values()
+                     if source.path is not None and shown_file(source.name) in files)
 
     @property
     def read_paths(self):
