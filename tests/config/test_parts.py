@@ -263,3 +263,27 @@ def test_changed_part_uses_follows_the_parts_a_part_builds_on():
     assert [use.segment for use in changed_part_uses(link, ["parts/worn.parts.yaml"])] == ["worn"]
     assert [use.segment for use in changed_part_uses(link, ["parts/connectors.parts.yaml"])] == [
         "panel A", "panel B", "worn"]
+
+
+@pytest.mark.parametrize(("settings", "expected"), [
+    ('[parts]\nfolders = "parts"\n', "linkbudget.toml: parts.folders: expected a list of folder names"),
+    ('[parts]\nfolder = ["parts"]\n', "linkbudget.toml: parts.folder: unknown key 'folder'"),
+    ('[colours]\nrow = "red"\n', "linkbudget.toml: colours: unknown settings section 'colours'"),
+    ("[parts\n", "linkbudget.toml: (top level): not valid TOML: "),
+])
+def test_a_bad_settings_file_is_named_with_its_key(settings, expected):
+    texts = library(**{"linkbudget.toml": settings})
+    assert any(line.startswith(expected) for line in problem_lines(texts, "links/north.yaml"))
+
+
+def test_a_reader_that_cannot_list_folders_gives_a_placed_problem():
+    class ReadOnly:
+        def __init__(self, texts):
+            self.memory = MemoryReader(texts)
+
+        def read(self, path, folder=None):
+            return self.memory.read(path, folder)
+
+    with pytest.raises(ConfigError) as caught:
+        load_link("links/north.yaml", reader=ReadOnly(library()))
+    assert "links: (top level): part folder '.': this reader cannot list a folder's files" in str(caught.value)
