@@ -34,7 +34,6 @@ of each part in between) that used it.
 import difflib
 import posixpath
 import re
-import tomllib
 from dataclasses import dataclass, field, replace
 from functools import partial
 from pathlib import Path
@@ -234,6 +233,8 @@ def parse_settings(source, up):
     ConfigError
         Placed at the settings file (TOML gives no key positions: the key path is named).
     """
+    import tomllib  # here: only a link that uses parts reads the settings file
+
     def problem(path, message, hint=None):
         return ConfigError([Problem(shown_file(source.name), None, path, message, hint)])
 
