@@ -151,3 +151,11 @@ def test_check_a_part_file_given_alone_checks_its_parts(repo):
     assert result.stdout.splitlines() == [f"ERROR  {broken}: input error",
                                           "1 part file(s): 1 with input errors, 0 part(s) used by no link checked"]
     assert f"{broken}:9:5: parts.housing-window.thicknes: unknown key 'thicknes'" in result.stderr
+
+
+def test_a_coating_row_from_a_part_names_it_in_json(repo):
+    rows = json.loads(run_cli("run", repo / "links/clearwater-sensor.yaml", "--format", "json").stdout)["rows"]
+    parts = {row["name"]: row.get("part") for row in rows}
+    assert parts["housing-ar-coating"] == {"name": "housing-ar-coating", "file": f"{repo}/parts/windows.parts.yaml"}
+    assert parts["return window"] == {"name": "housing-window", "file": f"{repo}/parts/windows.parts.yaml"}
+    assert parts["tank water"] is None and parts["launch fibre"] is None
