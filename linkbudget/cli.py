@@ -53,7 +53,7 @@ class Format(str, Enum):
 #: The option of every command that loads links: a folder outside the project a link may read from.
 AllowPath = Annotated[list[Path] | None, typer.Option(
     "--allow-path", metavar="DIR",
-    help="Let the links read files (materials) in this folder outside their project; repeatable.")]
+    help="Let the links read files (materials, parts) in this folder outside their project; repeatable.")]
 
 
 def _fail_input(message):
