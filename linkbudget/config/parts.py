@@ -401,9 +401,9 @@ class PartLibrary:
             Placed problems: a name that is no plain name, a missing part, a cycle, a changed kind.
         """
         at = replace(at, own_keys=frozenset(entry) - {PART_KEY})
-        name = entry.get(PART_KEY)
-        if name is None:
+        if PART_KEY not in entry:
             return entry, at
+        name = entry[PART_KEY]
         if not isinstance(name, str) or not _PART_NAME.fullmatch(name):
             raise ConfigError([at.problem((PART_KEY,), "not a plain part name", _PART_NAME_HINT)])
         part_file = self.find(name, at, at.folder)

@@ -287,3 +287,10 @@ def test_a_reader_that_cannot_list_folders_gives_a_placed_problem():
     with pytest.raises(ConfigError) as caught:
         load_link("links/north.yaml", reader=ReadOnly(library()))
     assert "links: (top level): part folder '.': this reader cannot list a folder's files" in str(caught.value)
+
+
+@pytest.mark.parametrize("written", ["null", "[lc-pair]", "'lc pair'"])
+def test_a_part_key_that_names_no_plain_part_is_placed_at_it(written):
+    texts = library()
+    texts["links/north.yaml"] = link_text("north", 2, f"  - part: {written}\n")
+    assert problem_lines(texts, "links/north.yaml")[0] == "links/north.yaml:13:11: chain[3].part: not a plain part name"
