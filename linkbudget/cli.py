@@ -54,7 +54,7 @@ class Format(str, Enum):
 #: The option of every command that loads links: a folder outside the project a link may read from.
 AllowPath = Annotated[list[Path] | None, typer.Option(
     "--allow-path", metavar="DIR",
-    help="Let the links read files (materials) in this folder outside their project; repeatable.")]
+    help="Let the links read files (materials, parts) in this folder outside their project; repeatable.")]
 
 
 def _fail_input(message):
@@ -239,12 +239,13 @@ def check(
     from linkbudget.report import check as reports
 
     required = _margin_override(min_margin)
-    outcomes, protected = [], []
+    outcomes, protected, loaded_links = [], [], []
     streaming = output is None and output_format is ReportFormat.text
     for item in expand(links):
         started = time.perf_counter()
         try:
             loaded = load_argument(item, allow_path or ())
+            loaded_links.append(loaded)
             protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
             outcome = reports.CheckOutcome(item.name, evaluate(loaded, required_margin_db=required),
                                            seconds=time.perf_counter() - started)
@@ -255,16 +256,17 @@ def check(
             typer.echo(outcome.line)
         if outcome.error is not None:
             typer.echo(outcome.error, err=True)
-    if streaming:
+    if streaming and outcomes:
         typer.echo(reports.check_summary(*reports.counts(outcomes)))
-    else:
+    broken_part_files = _checked_part_files(links, loaded_links, allow_path or (), to_stderr=not streaming)
+    if not streaming:
         render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
                   ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
         _write_or_print(render(outcomes), output, force, protected)
     if junit is not None:
         _write_or_print(reports.render_junit(outcomes), junit, force, protected)
     _, _, fails, broken = reports.counts(outcomes)
-    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+    raise typer.Exit(EXIT_INPUT if broken or broken_part_files else EXIT_FAILS if fails else EXIT_OK)
 
 
 def _write_or_print(text, output, force, protected):
@@ -350,6 +352,63 @@ def _diff_text(found, output_format, max_loss_db):
     return console.file.getvalue()
 
 
+def _checked_part_files(arguments, loaded_links, allow_paths, *, to_stderr=False):
+    """Check the part files among ``arguments`` and under their folders and say which parts no link
+    uses (on standard error when standard output holds a report); the number that have errors."""
+    from linkbudget.report.summary import check_error_line
+    from linkbudget.report.usage import part_files_summary, unused_lines
+    from linkbudget.usage import checked_part_file, part_files_in, unused
+
+    checked = [checked_part_file(path, allow_paths) for path in part_files_in(arguments)]
+    for part_file in checked:
+        if part_file.problems:
+            typer.echo(check_error_line(part_file.path), err=to_stderr)
+            typer.echo("\n".join(problem.render() for problem in part_file.problems), err=True)
+    unused_parts = unused(checked, loaded_links) if loaded_links else []
+    for line in unused_lines(unused_parts, "checked"):
+        typer.echo(line, err=to_stderr)
+    broken = sum(bool(part_file.problems) for part_file in checked)
+    if checked:
+        typer.echo(part_files_summary(len(checked), broken, sum(len(names) for _, names in unused_parts)),
+                   err=to_stderr)
+    return broken
+
+
+@app.command(cls=_Command)
+def uses(
+    part: Annotated[str, typer.Argument(metavar="PART", help="The name of a part.")],
+    folder: Annotated[Path, typer.Argument(metavar="FOLDER", help="The folder to look in (default: here).")
+                      ] = Path("."),
+    allow_path: AllowPath = None,
+):
+    """Where a part is used: every link under FOLDER that uses PART (or a part built on it), then the
+    parts no link there uses.
+
+    Exit status 0 done, 2 PART is in no part file there and no link uses it, or an input is wrong.
+    """
+    from linkbudget.report.usage import unused_lines, use_line, uses_heading
+    from linkbudget.usage import survey, unused, users
+
+    if not folder.is_dir():
+        _fail_input(f"{folder}: not a folder")
+    found = survey(folder, allow_path or ())
+    listed = users(part, found.loaded)
+    typer.echo(uses_heading(part, len(listed), len({path for path, _ in listed}), folder))
+    for path, use in listed:
+        typer.echo(use_line(path, use, part))
+    for line in unused_lines(unused(found.part_files, [link for _, link in found.loaded]), f"under {folder}"):
+        typer.echo(line)
+    for path, error in found.broken:
+        typer.echo(f"{path}: not loaded, so not searched:\n{error}", err=True)
+    for part_file in found.part_files:
+        if part_file.problems:
+            typer.echo("\n".join(problem.render() for problem in part_file.problems), err=True)
+    defined = any(part in part_file.names for part_file in found.part_files)
+    if not listed and not defined:
+        _fail_input(f"no part '{part}' in the part files under {folder}")
+    raise typer.Exit(EXIT_INPUT if found.broken or any(f.problems for f in found.part_files) else EXIT_OK)
+
+
 @app.command(cls=_Command)
 def materials(
     name: Annotated[
@@ -399,14 +458,12 @@ def schema(
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    parts: Annotated[bool, typer.Option("--parts", help="The schema of part files (*.parts.yaml) instead.")] = False,
 ):
-    """Print the JSON Schema of link files, for an editor's YAML language server."""
+    """Print the JSON Schema of link files (or of part files), for an editor's YAML language server."""
     from linkbudget.config.json_schema import schema_text
 
-    if output is None:
-        sys.stdout.write(schema_text())
-    else:
-        _write_output(output, schema_text(), force)
+    _write_or_print(schema_text(parts=parts), output, force, ())
 
 
 def _interrupted(signum, frame):

@@ -267,7 +267,8 @@ def _coating(coating, coats, wavelength_m, n_up, n_down, angle_rad, share, need_
     absorptance = {pol: np.maximum(response.absorptance, 0.0) for pol, response in forward.items()}
     row, share = _share_row(coating.name, COATING_ROW, (coating.name,), share,
                             {pol: response.transmittance for pol, response in forward.items()},
-                            segment_kind=coating.kind, reflectance=reflectance, absorptance=absorptance)
+                            segment_kind=coating.kind, reflectance=reflectance, absorptance=absorptance,
+                            part=coating.part_origin)
     return [row], share, reflectance, back
 
 

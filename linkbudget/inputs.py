@@ -1,9 +1,10 @@
 """The link files a command is given: plain paths, folders, glob patterns and ``-`` (standard input).
 
-A folder stands for the ``.yaml`` and ``.yml`` files directly inside it (not its subfolders, where
-material files usually live), sorted by name; a pattern with ``*``, ``?`` or ``[`` that names no
-existing file is expanded (``**`` crosses folders), sorted; a pattern matching nothing is an input
-error of its own.
+A folder stands for the link files under it (:func:`linkbudget.usage.link_paths`: its ``.yaml`` and
+``.yml`` files and its subfolders', sorted, without part files and other YAML files such as
+material files); a pattern with ``*``, ``?`` or ``[`` that names no existing file is expanded
+(``**`` crosses folders), sorted, part files left to their own check; a pattern matching nothing
+is an input error of its own.
 """
 
 import glob
@@ -11,12 +12,12 @@ import sys
 from dataclasses import dataclass
 from pathlib import Path
 
+from linkbudget.config.parts import is_part_file
+from linkbudget.usage import link_paths, part_files_in
 from linkbudget.yamlread import MAX_FILE_BYTES
 
 #: The argument that means standard input.
 STDIN = "-"
-#: File endings a folder's links have.
-LINK_SUFFIXES = (".yaml", ".yml")
 #: What the messages call standard input.
 STDIN_NAME = "<stdin>"
 
@@ -50,10 +51,9 @@ def expand(arguments):
         if argument == STDIN:
             add(LinkArgument(STDIN_NAME))
         elif path.is_dir():
-            files = sorted(entry for entry in path.iterdir()
-                           if entry.suffix.lower() in LINK_SUFFIXES and entry.is_file())
-            if not files:
-                add(LinkArgument(argument, problem="folder holds no .yaml or .yml file"))
+            files = link_paths([path])
+            if not files and not part_files_in([path]):
+                add(LinkArgument(argument, problem="no link files (.yaml or .yml) and no part files in this folder"))
             for entry in files:
                 add(LinkArgument(str(entry), entry))
         elif _is_pattern(argument) and not path.exists():
@@ -62,8 +62,9 @@ def expand(arguments):
             if not files:
                 add(LinkArgument(argument, problem="no file matches this pattern"))
             for entry in files:
-                add(LinkArgument(str(entry), entry))
-        else:
+                if not is_part_file(entry.name):  # checked as a part file (see linkbudget.usage)
+                    add(LinkArgument(str(entry), entry))
+        elif not is_part_file(path.name):
             add(LinkArgument(str(path), path))
     return found
 

@@ -37,6 +37,10 @@ class PathRefused(ValueError):
         self.hint = hint
 
 
+class PathOutside(PathRefused):
+    """A path written in a link that leaves its project (and every allowed folder)."""
+
+
 def project_root(folder):
     """The nearest folder at or above ``folder`` holding a :data:`PROJECT_MARKERS` entry, else ``folder``.
 
@@ -78,30 +82,43 @@ class FileLocator:
         Raises
         ------
         PathRefused
-            For a ``~`` path, a path outside :attr:`roots`, a missing file, a folder, a device or a FIFO.
+            For a ``~`` path, a path outside :attr:`roots` (:class:`PathOutside`), a missing file, a
+            folder, a device or a FIFO.
         """
+        path, mode = self._confined(written)
         shown = escaped(written)
-        text = str(written)
-        if self.roots is not None and text.startswith("~"):
-            raise PathRefused(f"path '{shown}' is outside the project (a home folder)", _OUTSIDE_HINT)
-        portable = text.replace("\\", "/")
-        if self.roots is not None and _DRIVE.match(portable):
-            raise PathRefused(f"path '{shown}' is outside the project (a drive path)", _OUTSIDE_HINT)
-        try:
-            path = (self.base_dir / portable).resolve()
-        except (OSError, RuntimeError):  # RuntimeError: a symlink loop (Python 3.11)
-            raise PathRefused(f"path '{shown}' cannot be resolved (a symlink loop?)") from None
-        if self.roots is not None and not any(path.is_relative_to(root) for root in self.roots):
-            raise PathRefused(f"path '{shown}' is outside the project", _OUTSIDE_HINT)
-        try:
-            mode = os.stat(path).st_mode
-        except OSError as error:
-            raise PathRefused(f"cannot read file '{shown}': {error.strerror}") from None
         if stat.S_ISDIR(mode):
             raise PathRefused(f"path '{shown}' is a folder, not a file")
         if not stat.S_ISREG(mode):
             raise PathRefused(f"path '{shown}' is not a regular file (a device, a FIFO or a socket)")
         return path
+
+    def locate_folder(self, written):
+        """The resolved path of a folder named ``written``, confined as :meth:`locate` confines a file."""
+        path, mode = self._confined(written)
+        if not stat.S_ISDIR(mode):
+            raise PathRefused(f"path '{escaped(written)}' is not a folder")
+        return path
+
+    def _confined(self, written):
+        """``(resolved path, stat mode)`` of ``written``, refused if it leaves :attr:`roots` or is missing."""
+        shown = escaped(written)
+        text = str(written)
+        if self.roots is not None and text.startswith("~"):
+            raise PathOutside(f"path '{shown}' is outside the project (a home folder)", _OUTSIDE_HINT)
+        portable = text.replace("\\", "/")
+        if self.roots is not None and _DRIVE.match(portable):
+            raise PathOutside(f"path '{shown}' is outside the project (a drive path)", _OUTSIDE_HINT)
+        try:
+            path = (self.base_dir / portable).resolve()
+        except (OSError, RuntimeError):  # RuntimeError: a symlink loop (Python 3.11)
+            raise PathRefused(f"path '{shown}' cannot be resolved (a symlink loop?)") from None
+        if self.roots is not None and not any(path.is_relative_to(root) for root in self.roots):
+            raise PathOutside(f"path '{shown}' is outside the project", _OUTSIDE_HINT)
+        try:
+            return path, os.stat(path).st_mode
+        except OSError as error:
+            raise PathRefused(f"cannot read file '{shown}': {error.strerror}") from None
 
 
 def read_regular_file(path, *, max_bytes):

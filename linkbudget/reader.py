@@ -2,22 +2,26 @@
 
 A reader answers one question, ``read(path, folder=...)``: the text of ``path`` as written in a link
 whose own folder is ``folder`` (or, without ``folder``, a path the caller gives directly), as a
-:class:`Source` that says what was read. The loader and the material library never open files
-themselves, so the same code loads a link from the working tree (:class:`WorkingTreeReader`), from
-memory in tests (:class:`MemoryReader`), or, by adding one more class with this ``read`` method, from
-a git revision. A reader refuses a path it may not read with :class:`~linkbudget.paths.PathRefused`
-and a file whose bytes are no text with a placed :class:`~linkbudget.config.source.ConfigError`.
+:class:`Source` that says what was read. A link that uses parts (:mod:`linkbudget.config.parts`)
+asks one more, ``file_names(path, folder)``: the sorted names of the files in the folder ``path``.
+The loader and the material library never open files themselves, so the same code loads a link
+from the working tree (:class:`WorkingTreeReader`), from memory in tests (:class:`MemoryReader`),
+or, by adding one more class with these methods, from a git revision. A reader refuses a path it
+may not read with :class:`~linkbudget.paths.PathRefused` (:class:`~linkbudget.paths.PathOutside`
+for one leaving the project) and a file whose bytes are no text with a placed
+:class:`~linkbudget.config.source.ConfigError`.
 
 :class:`LinkFiles` is what one link hands its segments: its reader, its folder, and each file read
 once however many segments refer to it.
 """
 
+import os
 import posixpath
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from linkbudget.config.source import ConfigError, Mark, Problem
-from linkbudget.paths import FileLocator, PathRefused, read_regular_file
+from linkbudget.paths import FileLocator, PathOutside, PathRefused, read_regular_file
 from linkbudget.text import escaped
 from linkbudget.yamlread import MAX_FILE_BYTES, ReadError, bounded_text
 
@@ -67,6 +71,12 @@ class WorkingTreeReader:
             return located_source(FileLocator(Path("."), None), path, str(path))
         return located_source(FileLocator.for_link(folder, self.allow_paths), path, str(Path(folder) / str(path)))
 
+    def file_names(self, path, folder):
+        """Sorted names of the regular files in the folder ``path``, written relative to ``folder``."""
+        found = FileLocator.for_link(folder, self.allow_paths).locate_folder(path)
+        with os.scandir(found) as entries:
+            return tuple(sorted(entry.name for entry in entries if entry.is_file()))
+
 
 def located_source(locator, written, name):
     """The :class:`Source` of the file ``locator`` finds for ``written``, named ``name`` in messages."""
@@ -85,13 +95,29 @@ class MemoryReader:
     texts: dict
 
     def read(self, path, folder=None):
-        written = str(path).replace("\\", "/")
-        key = posixpath.normpath(posixpath.join(str(folder or "").replace("\\", "/"), written))
-        if posixpath.isabs(key) or key == ".." or key.startswith("../"):
-            raise PathRefused(f"path '{escaped(path)}' is outside the project")
+        key = self._key(path, folder)
         if key not in self.texts:
             raise PathRefused(f"cannot read file '{escaped(path)}': No such file")
         return Source(key, self.texts[key])
+
+    def file_names(self, path, folder):
+        """Sorted names of the files directly in the folder ``path``, written relative to ``folder``."""
+        key = self._key(path, folder)
+        prefix = "" if key == "." else key + "/"
+        names = tuple(sorted({name[len(prefix):] for name in self.texts
+                              if name.startswith(prefix) and "/" not in name[len(prefix):]}))
+        if not names and not any(name.startswith(prefix) for name in self.texts):
+            raise PathRefused(f"cannot read folder '{escaped(path)}': No such folder")
+        return names
+
+    @staticmethod
+    def _key(path, folder):
+        """The mapping's key of ``path`` written relative to ``folder``; refused if it leaves the mapping."""
+        written = str(path).replace("\\", "/")
+        key = posixpath.normpath(posixpath.join(str(folder or "").replace("\\", "/"), written))
+        if posixpath.isabs(key) or key == ".." or key.startswith("../"):
+            raise PathOutside(f"path '{escaped(path)}' is outside the project")
+        return key
 
 
 @dataclass

@@ -30,6 +30,8 @@ from linkbudget.units import EXAMPLES, NUMBER_PATTERN, allowed_units, quantity_p
 DIALECT = "https://json-schema.org/draft/2020-12/schema"
 #: The schema's identifier: the language as this release reads it.
 SCHEMA_ID = f"urn:linkbudget:link-schema:{__version__}"
+#: The part files' schema's identifier.
+PART_FILE_SCHEMA_ID = f"urn:linkbudget:part-file-schema:{__version__}"
 
 #: What ``\s`` means under ``re.ASCII``, spelled out: ECMA-262 (the regular expressions of JSON
 #: Schema) and Python's ``re`` without ``re.ASCII`` would also match other Unicode spaces.
@@ -135,22 +137,40 @@ def _spread(mapping):
                            "the nominal budget takes typ or mean, the worst case the end that hurts."}
 
 
-def _chain_entry(kinds, refs):
-    """A chain entry: a mapping whose ``kind`` is one of ``kinds`` (name -> model), checked against
-    that kind's model (an ``if``/``then`` per kind)."""
+#: A chain entry (or a part) that uses a part: ``part`` names it, any other key overrides the
+#: part's for this use (which keys a part's kind has is the loader's check).
+_PART_USE = {
+    "type": "object",
+    "title": "Part use",
+    "description": "A segment made of a part from a part file; its other keys replace the part's for this use.",
+    "required": ["part"],
+    "properties": {
+        "part": {"type": "string", "title": "Part", "description": "The name of the part (in a .parts.yaml file)."},
+        "name": {"type": "string", "title": "Name", "description": "Name of this use; default: the part's name."},
+    },
+}
+
+
+def _kind_entry(kinds, refs, title, description):
+    """A mapping whose ``kind`` is one of ``kinds`` (name -> model), checked against that kind's
+    model (an ``if``/``then`` per kind), or, with ``part``, a part use."""
     return {
         "type": "object",
-        "title": "Chain entry",
-        "description": "A segment of the link; its kind says which keys it takes.",
-        "required": ["kind"],
-        "properties": {"kind": {"title": "Kind", "description": "The segment kind.", "enum": list(kinds)}},
-        "allOf": [{"if": {"properties": {"kind": {"const": kind}}, "required": ["kind"]},
-                   "then": {"$ref": refs[model]}} for kind, model in kinds.items()],
+        "title": title,
+        "description": description,
+        "if": {"required": ["part"]},
+        "then": _PART_USE,
+        "else": {
+            "required": ["kind"],
+            "properties": {"kind": {"title": "Kind", "description": "The segment kind.", "enum": list(kinds)}},
+            "allOf": [{"if": {"properties": {"kind": {"const": kind}}, "required": ["kind"]},
+                       "then": {"$ref": refs[model]}} for kind, model in kinds.items()],
+        },
     }
 
 
-def link_schema():
-    """The JSON Schema of a link file, as a dict."""
+def _generated():
+    """(kinds, refs, definitions, link) of the models: the kinds' definitions with their summaries."""
     from linkbudget.config.schema import LinkSpec
     from linkbudget.segments.registry import KINDS
 
@@ -164,7 +184,14 @@ def link_schema():
         summary = _summary(model.__doc__)
         kind_key["description"] = f"Segment kind `{kind}`: {summary[0].lower()}{summary[1:]}"
     link = definitions.pop(refs[LinkSpec].rsplit("/", 1)[-1])
-    link["properties"]["chain"]["items"] = _chain_entry(KINDS, refs)
+    return KINDS, refs, definitions, link
+
+
+def link_schema():
+    """The JSON Schema of a link file, as a dict."""
+    kinds, refs, definitions, link = _generated()
+    link["properties"]["chain"]["items"] = _kind_entry(
+        kinds, refs, "Chain entry", "A segment of the link; its kind says which keys it takes, or it uses a part.")
     return {
         "$schema": DIALECT,
         "$id": SCHEMA_ID,
@@ -176,6 +203,36 @@ def link_schema():
     }
 
 
-def schema_text():
-    """The schema as JSON text (UTF-8, indented, ending in a newline)."""
-    return json.dumps(link_schema(), indent=2, ensure_ascii=False) + "\n"
+def part_file_schema():
+    """The JSON Schema of a part file (``*.parts.yaml``), as a dict: named parts, each a chain
+    entry without a place, whose kind's keys are all optional (a use may give what a part leaves
+    out, such as a fibre's length)."""
+    kinds, refs, definitions, _ = _generated()
+    optional = {}
+    for model in kinds.values():
+        name = refs[model].rsplit("/", 1)[-1]
+        optional[name + "Part"] = {**definitions[name], "required": ["kind"]}
+    part_refs = {model: f"{refs[model]}Part" for model in kinds.values()}
+    return {
+        "$schema": DIALECT,
+        "$id": PART_FILE_SCHEMA_ID,
+        "title": "linkbudget part file",
+        "description": "A part file of linkbudget: named parts that links use by name in their chains.",
+        "type": "object",
+        "additionalProperties": False,
+        "required": ["parts"],
+        "properties": {
+            "description": {"type": "string", "title": "Description", "description": "What the parts are."},
+            "parts": {"type": "object", "title": "Parts", "description": "The parts, by name.",
+                      "additionalProperties": _kind_entry(kinds, part_refs, "Part",
+                                                          "A chain entry without a place: its kind and keys, "
+                                                          "or another part it builds on.")},
+        },
+        "$defs": {**definitions, **optional},
+    }
+
+
+def schema_text(*, parts=False):
+    """The schema of link files (of part files with ``parts``) as JSON text (UTF-8, indented,
+    ending in a newline)."""
+    return json.dumps(part_file_schema() if parts else link_schema(), indent=2, ensure_ascii=False) + "\n"

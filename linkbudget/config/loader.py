@@ -6,12 +6,13 @@ an optional hint line; all problems of a file are collected, not only the first.
 
 import difflib
 import typing
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 from pathlib import Path
 
 from pydantic import BaseModel, ValidationError
 
 from linkbudget.config.fields import InputProblem
+from linkbudget.config.parts import PartLibrary, Written, is_part_use
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
 from linkbudget.reader import LinkFiles, WorkingTreeReader
@@ -29,6 +30,8 @@ class Link:
     #: Resolved paths of the files the link refers to that were read (its material files).
     referenced_files: tuple = ()
     positions: object = None  # where each key path was written, to place evaluation errors
+    #: The chain entries made from parts (:class:`~linkbudget.config.parts.PartUse`), in chain order.
+    part_uses: tuple = ()
 
 
 def _model_at(model, loc):
@@ -91,8 +94,9 @@ def _message_of(item):
     return message.replace("Input should be", "must be")
 
 
-def problems_from_validation(error, positions, model, data, prefix=()):
-    """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s."""
+def problems_from_validation(error, positions, model, data, prefix=(), *, missing_ok=False):
+    """Turn a pydantic ``ValidationError`` into placed :class:`Problem` s (``missing_ok``: not
+    those of a missing required key)."""
     problems = []
     suggested = set()  # (parent loc, key) a misspelt key was taken for: not also "missing"
     for item in error.errors():
@@ -111,6 +115,8 @@ def problems_from_validation(error, positions, model, data, prefix=()):
         if item["type"] == "extra_forbidden" or loc and (loc[:-1], loc[-1]) in suggested:
             continue
         if item["type"] == "missing":
+            if missing_ok:
+                continue
             path = _written_path(data, loc)
             problems.append(positions.problem((*prefix, *path), f"missing required key '{loc[-1]}'"))
             continue
@@ -120,12 +126,16 @@ def problems_from_validation(error, positions, model, data, prefix=()):
     return problems
 
 
-def _validate_segment(item, index, positions):
+def validate_entry(item, path, positions, *, complete=True):
+    """``(spec or None, problems)`` of the chain entry ``item`` written at ``path`` of ``positions``
+    (a :class:`~linkbudget.config.source.Positions`, or anything that places problems as it does).
+
+    ``complete=False`` lets required keys be missing: a part may leave them to each use (a fibre's length).
+    """
     from linkbudget.segments.registry import (
         KINDS,  # here: the segment kinds import the config fields
     )
 
-    path = ("chain", index)
     if not isinstance(item, dict):
         return None, [positions.problem(path, "a chain item must be a mapping with a 'kind'")]
     kind = item.get("kind")
@@ -136,12 +146,16 @@ def _validate_segment(item, index, positions):
         return None, [positions.problem((*path, "kind"), message, hint)]
     model = KINDS[kind]
     try:
-        segment = model.model_validate(item)
+        return model.model_validate(item), []
     except ValidationError as error:
-        return None, problems_from_validation(error, positions, model, item, path)
-    if segment.name is None:
-        segment = segment.model_copy(update={"name": f"{kind} {index + 1}"})
-    return segment, []
+        return None, problems_from_validation(error, positions, model, item, path, missing_ok=not complete)
+
+
+def _validate_segment(item, index, positions):
+    segment, problems = validate_entry(item, ("chain", index), positions)
+    if segment is not None and segment.name is None:
+        segment = segment.model_copy(update={"name": f"{segment.kind} {index + 1}"})
+    return segment, problems
 
 
 def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=None):
@@ -179,19 +193,25 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
         problems += problems_from_validation(error, positions, LinkSpec, data)
     chain = data.get("chain")
     wavelength_m = None if spec is None else spec.wavelengths_m()
-    segments, seen = [], {}
+    segments, seen, places, part_uses = [], {}, {}, []
     files = LinkFiles(reader or WorkingTreeReader(tuple(allow_paths)), Path(base_dir or "."))
+    library = PartLibrary(files, spec.part_folders if spec is not None else (), positions)
     for index, item in enumerate(chain if isinstance(chain, list) else []):
-        segment, found = _validate_segment(item, index, positions)
+        if is_part_use(item):
+            segment, found, places[index], segment_files, use = library.use(item, index, positions)
+            part_uses += [use] if use is not None else []
+        else:
+            segment, found = _validate_segment(item, index, positions)
+            places[index], segment_files = Written(positions, ("chain", index)), files
         problems += found
         if segment is None:
             continue
         if spec is not None:
             try:
-                segment = segment.resolve(wavelength_m, files)
+                segment = segment.resolve(wavelength_m, segment_files)
             except InputProblem as problem:
-                placed = positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
-                problems.append(replace(placed, cause=problem.cause))
+                problems.append(places[index].problem(problem.key_path, str(problem), problem.hint,
+                                                      cause=problem.cause))
                 continue
         if segment.name in seen:
             problems.append(positions.problem(
@@ -199,12 +219,13 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
                 f"already used by chain[{seen[segment.name]}]; names identify segments in diffs"))
         seen.setdefault(segment.name, index)
         segments.append(segment)
+    problems += library.problems
     if not problems:
-        problems = [positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
+        problems = [places[index].problem(problem.key_path, str(problem), problem.hint)
                     for index, problem in chain_problems(segments, wavelength_m)]
     if problems:
         raise ConfigError(problems)
-    return Link(spec, tuple(segments), file, files.read_paths, positions)
+    return Link(spec, tuple(segments), file, (*files.read_paths, *library.read_paths), positions, tuple(part_uses))
 
 
 def load_link(path, allow_paths=(), *, reader=None):

@@ -91,6 +91,8 @@ class LinkSpec(Strict):
     source: Source = Field(description="The transmitter.")
     receiver: Receiver = Field(description="The receiver.")
     chain: list[Any] = Field(min_length=1, description="The segments, in the order light passes them.")
+    part_folders: list[str] | None = Field(
+        None, description="Folders searched for parts after the link's own (see linkbudget.config.parts).")
 
     @model_validator(mode="after")
     def _one_axis(self):

@@ -69,8 +69,9 @@ class ConfigError(Exception):
 class Problem:
     """One input error: where it is and what is wrong, with an optional hint line.
 
-    ``cause`` is the placed error in another file this place refers to (a material file): it is
-    written as the second line instead of the hint, so both places show in two lines.
+    ``cause`` is the placed error in another file this place refers to (a material file, a part):
+    it is written as the second line instead of the hint, so both places show; a cause may have its
+    own cause (a part's material file), each on a further line.
     """
 
     file: str
@@ -86,10 +87,14 @@ class Problem:
         return f"{escaped(where)}: {escaped(format_key_path(self.path))}: {escaped(self.message)}"
 
     def render(self):
-        if self.cause is not None:
-            inner = self.cause.line() + ("" if self.cause.hint is None else f" (hint: {escaped(self.cause.hint)})")
-            return f"{self.line()}\n  {inner}"
-        return self.line() + format_hint(None if self.hint is None else escaped(self.hint))
+        if self.cause is None:
+            return self.line() + format_hint(None if self.hint is None else escaped(self.hint))
+        lines, cause = [self.line()], self.cause
+        while cause is not None:  # a part used by a link, a part it builds on, a material file...
+            lines.append("  " + cause.line() + ("" if cause.hint is None or cause.cause is not None
+                                                else f" (hint: {escaped(cause.hint)})"))
+            cause = cause.cause
+        return "\n".join(lines)
 
 
 @dataclass

@@ -110,6 +110,7 @@ def _row_document(result, index):
         "kind": row.kind,
         "segment_kind": row.segment_kind,
         "origin": list(row.origin),
+        **({"part": {"name": row.part.name, "file": row.part.file}} if row.part is not None else {}),
         "loss_db": _by_case(result.loss_db, index),
         "cumulative_loss_db": _by_case(result.cumulative_loss_db, index),
         "power_after_dbm": _by_case(result.power_after_dbm, index),

@@ -77,7 +77,7 @@ def _db_cases(losses, index):
 def row_note(row, index):
     """A short note on a budget row at wavelength number ``index``: the reflectance of a face,
     R and A of a coating, a connector's return loss, the geometric estimate beside a datasheet
-    loss, the parts of a loss, the row's facts."""
+    loss, the parts of a loss, the row's facts, the library part it was made from."""
     notes = []
     if row.reflectance is not None and row.kind != SEGMENT_ROW:
         notes.append(f"R {_percent(row.reflectance_seen, index)}")
@@ -92,6 +92,8 @@ def row_note(row, index):
     if row.kind == SEGMENT_ROW and row.reflectance is not None:
         notes.append(f"return loss {fixed(row.return_loss_db[index], 1)} dB")
     notes.extend(row.facts)  # the user's own words among them: each format escapes the whole note
+    if row.part is not None:
+        notes.append(f"part {row.part.name} ({row.part.file})")
     return "; ".join(notes)
 
 

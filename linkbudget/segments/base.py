@@ -5,13 +5,13 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
-from pydantic import Field
+from pydantic import Field, PrivateAttr
 
 from linkbudget.config.fields import InputProblem, SpreadBase, Strict, range_notes, spread
 from linkbudget.config.ranges import RANGES, mode_size_problem
 from linkbudget.segments.coupling import TILT_DIRECTION_COSINES
 from linkbudget.segments.roles import GUIDES
-from linkbudget.segments.rows import segment_row
+from linkbudget.segments.rows import PartOrigin, segment_row
 
 #: The spread types the segment kinds share (one definition each), by their valid range.
 JointLossSpread = spread("ratio", bounds=RANGES["joint loss"])
@@ -150,6 +150,12 @@ class SegmentSpec(Strict):
     """
 
     name: str | None = Field(None, description="Name of the segment, unique in the chain; default: its kind and place.")
+    _part_origin: PartOrigin | None = PrivateAttr(default=None)
+
+    @property
+    def part_origin(self):
+        """The :class:`~linkbudget.segments.rows.PartOrigin` of a segment made from a part, else ``None``."""
+        return self._part_origin
 
     def resolve(self, wavelength_m, files):
         """Check what needs the wavelength axis or other files (materials); return the resolved

@@ -21,6 +21,14 @@ POLARIZATIONS = LINEAR_POLARIZATIONS
 
 
 @dataclass(frozen=True)
+class PartOrigin:
+    """The part of a parts library a segment was made from: its ``name`` and the ``file`` defining it."""
+
+    name: str
+    file: str
+
+
+@dataclass(frozen=True)
 class Row:
     """One line of the budget.
 
@@ -56,6 +64,8 @@ class Row:
         Short facts the reports show beside the row (a port followed, the user's note).
     notes : tuple of str
         Validity notes of the models this row used.
+    part : PartOrigin or None
+        The part a segment's or coating's row was made from (:mod:`linkbudget.config.parts`).
     """
 
     id: str
@@ -70,6 +80,7 @@ class Row:
     geometric_estimate_db: dict | None = None
     facts: tuple = ()
     notes: tuple = ()
+    part: PartOrigin | None = None
 
     @property
     def name(self):
@@ -103,4 +114,5 @@ class Row:
 
 def segment_row(segment, losses, **typed):
     """The ``segment`` row of a segment (its name, kind and origin) with ``losses`` per case."""
-    return Row(segment.name, SEGMENT_ROW, (segment.name,), losses, segment_kind=segment.kind, **typed)
+    return Row(segment.name, SEGMENT_ROW, (segment.name,), losses, segment_kind=segment.kind,
+               part=segment.part_origin, **typed)

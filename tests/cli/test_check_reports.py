@@ -35,8 +35,9 @@ def test_check_junit_one_case_per_link_with_failures_and_errors(cli, folder):
     result = cli("check", folder, "--junit", report)
     assert result.exit_code == 2  # an input error outranks a failing link
     suite, cases = junit_cases(report)
-    assert sorted(cases) == sorted(str(folder / name) for name in ("broken.yaml", "good.yaml", "short.yml"))
-    assert (suite.get("tests"), suite.get("failures"), suite.get("errors")) == ("3", "1", "1")
+    assert sorted(cases) == sorted(str(folder / name) for name in ("broken.yaml", "good.yaml", "short.yml",
+                                                                   "sub/deeper.yaml"))
+    assert (suite.get("tests"), suite.get("failures"), suite.get("errors")) == ("4", "1", "1")
     good, short, broken = (cases[str(folder / name)] for name in ("good.yaml", "short.yml", "broken.yaml"))
     assert good.find("failure") is None and good.find("error") is None
     assert short.find("failure") is not None and "margin short" in short.find("failure").get("message")
@@ -68,8 +69,8 @@ def test_check_junit_escapes_names(cli, tmp_path, minimal_link):
 def test_check_folder_and_pattern_expand_sorted(cli, folder):
     lines = cli("check", folder).stdout.splitlines()
     assert [line.split()[1].rstrip(":") for line in lines[:-1]] == [
-        str(folder / name) for name in ("broken.yaml", "good.yaml", "short.yml")]
-    assert lines[-1] == "3 link(s): 1 close, 1 do not close, 1 with input errors"
+        str(folder / name) for name in ("broken.yaml", "good.yaml", "short.yml", "sub/deeper.yaml")]
+    assert lines[-1] == "4 link(s): 2 close, 1 do not close, 1 with input errors"
     pattern = cli("check", str(folder / "**" / "*.yaml"))
     names = [line.split()[1].rstrip(":") for line in pattern.stdout.splitlines()[:-1]]
     assert names == sorted(str(folder / name) for name in ("broken.yaml", "good.yaml", "sub/deeper.yaml"))
@@ -106,7 +107,7 @@ def test_check_json_report(cli, folder):
     assert by_status["fail"]["worst_margin_db"] == pytest.approx(-0.5, abs=1e-9)
     assert by_status["fail"]["reasons"] == ["margin short"]
     assert by_status["error"]["closes"] is None and "wavelength" in by_status["error"]["error"]
-    assert document["summary"] == {"links": 3, "close": 1, "do_not_close": 1, "input_errors": 1}
+    assert document["summary"] == {"links": 4, "close": 2, "do_not_close": 1, "input_errors": 1}
 
 
 def test_check_markdown_report_to_file(cli, folder):

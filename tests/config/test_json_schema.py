@@ -23,7 +23,7 @@ from pydantic import TypeAdapter, ValidationError
 
 from linkbudget.config import ConfigError, parse_link
 from linkbudget.config.fields import ComplexIndex
-from linkbudget.config.json_schema import DIALECT, SCHEMA_ID, link_schema, quantity_schema
+from linkbudget.config.json_schema import DIALECT, SCHEMA_ID, link_schema, part_file_schema, quantity_schema
 from linkbudget.segments.registry import KINDS
 from linkbudget.segments.splitter import split_ratio
 from linkbudget.units import UNITS, UnitError, parse_quantity
@@ -57,13 +57,19 @@ def is_material_file(document):
     return isinstance(document, dict) and {"name", "source"} <= document.keys() and "chain" not in document
 
 
+def is_part_file(document):
+    """A part file (the README shows some): named parts under ``parts``, no chain."""
+    return isinstance(document, dict) and "parts" in document and "chain" not in document
+
+
 def readme_links():
     """(where, link) for every README example that is a link or chain entries, wrapped in a minimal link."""
     links = []
     for line, document in readme_yaml_blocks():
-        if is_material_file(document):
+        if is_material_file(document) or is_part_file(document):
             continue
-        link = {**MINIMAL_LINK, "chain": document} if isinstance(document, list) else document
+        link = ({**MINIMAL_LINK, "chain": document} if isinstance(document, list)
+                else {**MINIMAL_LINK, **document} if document.keys() == {"chain"} else document)
         links.append((f"README.md:{line}", link))
     return links
 
@@ -89,7 +95,9 @@ def test_readme_examples_found():
     blocks = readme_yaml_blocks()
     materials = [document for _, document in blocks if is_material_file(document)]
     assert [document["name"] for document in materials] == ["my-glass", "potting-epoxy"]
-    assert len(readme_links()) == len(blocks) - 2 >= 10
+    part_files = [document for _, document in blocks if is_part_file(document)]
+    assert len(part_files) >= 1
+    assert len(readme_links()) == len(blocks) - 2 - len(part_files) >= 10
 
 
 @pytest.mark.parametrize(("where", "link"), example_links(), ids=[where for where, _ in example_links()])
@@ -114,10 +122,17 @@ def at(document, path):
     return document
 
 
+def in_part_use(document, path):
+    """Whether ``path`` lies in a chain entry that uses a part: its keys are the part's kind's,
+    which only the loader knows (the part file names the kind)."""
+    return any(isinstance(at(document, path[:end]), dict) and "part" in at(document, path[:end])
+               for end in range(len(path) + 1))
+
+
 def test_unknown_key_rejected_in_every_mapping_of_every_example():
     checked = 0
     for where, link in example_links():
-        for path in mappings(link):
+        for path in (path for path in mappings(link) if not in_part_use(link, path)):
             changed = copy.deepcopy(link)
             at(changed, path)["colour"] = "blue"
             assert errors(changed), f"{where}: an unknown key at {list(path)} passes the schema"
@@ -144,6 +159,8 @@ def test_bare_number_rejected_for_every_quantity_of_every_example():
     checked = 0
     for where, link in example_links():
         for path, number_text in quantity_leaves(link):
+            if in_part_use(link, path[:-1]):
+                continue
             changed = copy.deepcopy(link)
             at(changed, path[:-1])[path[-1]] = float(number_text)
             assert errors(changed), f"{where}: a bare number at {list(path)} passes the schema"
@@ -203,7 +220,7 @@ def test_chain_entry_judged_by_its_kind_as_the_loader_judges_it(entry, accepted)
 
 
 def test_every_kind_of_the_registry_is_discriminated():
-    items = link_schema()["properties"]["chain"]["items"]
+    items = link_schema()["properties"]["chain"]["items"]["else"]
     assert items["properties"]["kind"]["enum"] == list(KINDS)
     assert [rule["if"]["properties"]["kind"]["const"] for rule in items["allOf"]] == list(KINDS)
 
@@ -419,3 +436,50 @@ def test_schema_and_loader_agree_on_mutants_of_the_examples():
                 assert not passes, f"{where}: the loader refuses it ({refused[0]}), the schema passes it"
                 seen["both refuse"] += 1
     assert seen["both read"] >= 20 and seen["both refuse"] >= 50, seen
+
+
+# ---- part files (linkbudget schema --parts) ----
+
+SHARED_PARTS = ROOT / "examples" / "shared-parts"
+
+
+def part_file_examples():
+    """Every part file the project shows: the shipped example's and the README's."""
+    return ([(path.name, yaml.safe_load(path.read_text(encoding="utf-8"))) for path in
+             sorted(SHARED_PARTS.rglob("*.parts.yaml"))]
+            + [(f"README.md:{line}", document) for line, document in readme_yaml_blocks() if is_part_file(document)])
+
+
+def test_part_file_schema_is_valid_and_every_shown_part_file_validates():
+    Draft202012Validator.check_schema(part_file_schema())
+    validator = Draft202012Validator(part_file_schema())
+    examples = part_file_examples()
+    assert len(examples) >= 4
+    for where, document in examples:
+        assert [error.message for error in validator.iter_errors(document)] == [], where
+
+
+def test_links_using_parts_validate_and_a_part_use_needs_no_kind():
+    links = sorted((SHARED_PARTS / "links").glob("*.yaml"))
+    assert links
+    for path in links:
+        assert errors(yaml.safe_load(path.read_text(encoding="utf-8"))) == [], path.name
+    use = {**MINIMAL_LINK, "chain": [{"part": "lc-upc-mated-pair", "name": "hut patch panel"}]}
+    assert errors(use) == []
+    assert errors({**MINIMAL_LINK, "chain": [{"name": "no kind, no part"}]}) != []
+
+
+def test_part_file_schema_refuses_unknown_keys_and_bare_numbers_but_not_a_missing_length():
+    validator = Draft202012Validator(part_file_schema())
+    assert not list(validator.iter_errors({"parts": {"trunk": {"kind": "fiber", "attenuation": "0.3 dB/km"}}}))
+    for bad in ({"parts": {"trunk": {"kind": "fiber", "attenuation": 0.3}}},
+                {"parts": {"trunk": {"kind": "fiber", "lenght": "2 km"}}},
+                {"parts": {"trunk": {"kind": "fiber"}}, "chain": []},
+                {"parts": {"trunk": {"kind": "no-such-kind"}}}):
+        assert list(validator.iter_errors(bad)), bad
+
+
+def test_schema_command_prints_the_part_file_schema():
+    result = run_cli("schema", "--parts")
+    assert result.exit_code == 0
+    assert json.loads(result.stdout)["title"] == "linkbudget part file"

@@ -53,7 +53,7 @@ def test_new_kind_input_errors_are_placed():
 
 def test_new_kind_is_in_the_editor_schema():
     schema = link_schema()
-    entry = schema["properties"]["chain"]["items"]
+    entry = schema["properties"]["chain"]["items"]["else"]
     assert "attenuator" in entry["properties"]["kind"]["enum"]
     (rule,) = [rule for rule in entry["allOf"] if rule["if"]["properties"]["kind"]["const"] == "attenuator"]
     keys = schema["$defs"][rule["then"]["$ref"].rsplit("/", 1)[-1]]["properties"]
