@@ -4,6 +4,7 @@ Exit codes, for every command: 0 the link closes / the command succeeded; 1 a li
 meet its margin or overload; 2 the input is wrong; 3 an internal error (a bug).
 """
 
+import contextlib
 import signal
 import sys
 from enum import Enum
@@ -87,6 +88,73 @@ def _margin_override(text):
     return margin_db
 
 
+#: The options of every command that can run a statistical budget.
+Trials = Annotated[int | None, typer.Option(
+    "--trials", metavar="N", help="Run a statistical budget of N Monte Carlo trials (overrides the file's "
+    "statistics.trials).")]
+Seed = Annotated[int | None, typer.Option(
+    "--seed", metavar="SEED", help="Seed of the trials' random draws (default: the file's statistics.seed, else 0).")]
+Quiet = Annotated[bool, typer.Option("--quiet", "-q", help="No progress bar during the trials.")]
+
+
+def _checked_count(option, value, what):
+    """``value`` of a whole-number ``option`` within the range ``what``, or exit 2."""
+    from linkbudget.config.ranges import RANGES
+
+    problem = None if value is None else RANGES[what].problem(value)
+    if problem is not None:
+        _fail_input(f"{option}: {problem}")
+    return value
+
+
+@contextlib.contextmanager
+def _trial_progress(quiet):
+    """A progress callback drawing a bar on stderr while trials run, or ``None`` (``--quiet``, or
+    stderr is not a terminal)."""
+    from rich.console import Console
+
+    console = Console(stderr=True)
+    if quiet or not console.is_terminal:
+        yield None
+        return
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+
+    with Progress(TextColumn("trials"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                  console=console, transient=True) as bar:
+        task = bar.add_task("trials", total=None)
+
+        def advance(done, total=None):
+            bar.update(task, completed=done, **({} if total is None else {"total": total}))
+
+        yield advance
+
+
+def _with_trials(loaded, result, trials, seed, quiet):
+    """``result`` with its statistical budget, when ``--trials`` or the file's ``statistics`` asks."""
+    from linkbudget.statistics import requested, with_statistics
+
+    asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
+                      _checked_count("--seed", seed, "seed"))
+    if asked is None:
+        return result
+    with _trial_progress(quiet) as progress:
+        return with_statistics(loaded, result, trials=asked[0], seed=asked[1], progress=progress)
+
+
+def _yield_fraction(text):
+    """``--min-yield`` as a fraction: ``99.9%`` or ``0.999``; exit 2 when it is not one."""
+    if text is None:
+        return None
+    stripped = text.strip()
+    try:
+        value = float(stripped[:-1]) / 100 if stripped.endswith("%") else float(stripped)
+    except ValueError:
+        _fail_input(f"--min-yield: cannot read {text!r} as a yield, e.g. '99.9%' or 0.999")
+    if not 0 < value <= 1:
+        _fail_input(f"--min-yield: a yield is above 0 and at most 100 %, got {text!r}")
+    return value
+
+
 def _version(value: bool):
     if value:
         typer.echo(f"linkbudget {__version__}")
@@ -139,12 +207,17 @@ def run(
         str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
     allow_path: AllowPath = None,
+    trials: Trials = None,
+    seed: Seed = None,
+    quiet: Quiet = False,
 ):
-    """Print the budget of one link: every segment, received power, margins, verdict.
+    """Print the budget of one link: every segment, received power, margins, verdict; with
+    --trials (or the file's statistics block) its statistical budget too.
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
+    result = _with_trials(loaded, result, trials, seed, quiet)
     _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
@@ -177,28 +250,46 @@ def check(
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
     allow_path: AllowPath = None,
+    min_yield: Annotated[str | None, typer.Option(
+        "--min-yield", metavar="YIELD",
+        help="Gate on the statistical budget instead of the worst case: pass when at least this share of "
+             "trials closes at every wavelength, e.g. '99.9%'. Needs --trials or a statistics block.")] = None,
+    trials: Trials = None,
+    seed: Seed = None,
+    quiet: Quiet = False,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes.
+    """The CI gate: one line per link, exit 0 only if every link closes (or, with --min-yield,
+    reaches the yield).
 
     Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
+    from linkbudget.report.statistics_table import yield_check_line
     from linkbudget.report.summary import check_error_line, check_line, check_summary
 
     required = _margin_override(min_margin)
+    least_yield = _yield_fraction(min_yield)
     closes = fails = broken = 0
     for path in links:
         try:
-            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
+            loaded = load_link(path, allow_path or ())
+            result = _with_trials(loaded, evaluate(loaded, required_margin_db=required), trials, seed, quiet)
         except ConfigError as error:
             broken += 1
             typer.echo(check_error_line(path), err=False)
             typer.echo(str(error), err=True)
             continue
-        typer.echo(check_line(result, path))
-        closes += result.closes
-        fails += not result.closes
+        if least_yield is not None and result.statistics is None:
+            broken += 1
+            typer.echo(check_error_line(path), err=False)
+            typer.echo(f"{path}: --min-yield needs trials: give --trials N, or a statistics block "
+                       "({trials: N, seed: S}) in the file", err=True)
+            continue
+        passed = result.closes if least_yield is None else result.statistics.yield_fraction >= least_yield
+        typer.echo(check_line(result, path) if least_yield is None else yield_check_line(result, path, least_yield))
+        closes += passed
+        fails += not passed
     typer.echo(check_summary(len(links), closes, fails, broken))
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 

@@ -5,7 +5,7 @@ from typing import Any
 import numpy as np
 from pydantic import Field, model_validator
 
-from linkbudget.config.fields import InputProblem, Strict, quantity, spread
+from linkbudget.config.fields import InputProblem, Strict, integer, quantity, spread
 from linkbudget.config.ranges import RANGES
 from linkbudget.units import WAVELENGTH_EXAMPLE
 
@@ -75,6 +75,14 @@ class Receiver(Strict):
         return self
 
 
+class StatisticsSpec(Strict):
+    """A statistical budget asked for by the file: ``trials`` Monte Carlo trials from ``seed``
+    (the command line's ``--trials`` and ``--seed`` override them)."""
+
+    trials: integer(bounds=RANGES["trial count"])
+    seed: integer(bounds=RANGES["seed"]) = 0
+
+
 class LinkSpec(Strict):
     """A whole link file. ``chain`` items are validated by their own kind (see the registry)."""
 
@@ -86,6 +94,7 @@ class LinkSpec(Strict):
     source: Source
     receiver: Receiver
     chain: list[Any] = Field(min_length=1)
+    statistics: StatisticsSpec | None = None
 
     @model_validator(mode="after")
     def _one_axis(self):
