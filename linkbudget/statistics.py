@@ -113,8 +113,13 @@ class _Moments:
         self.nominal = nominal
         self.sum = self.squares = self.with_margin = 0.0
 
-    def add(self, values, margin_offset):
-        offset = np.broadcast_to(values - self.nominal, margin_offset.shape)
+    def add(self, values, margin_offset, scratch=None):
+        """Add a chunk's draws (broadcasting to ``margin_offset``'s shape), their offset computed in
+        ``scratch`` (an array of that shape) when given."""
+        if scratch is None:
+            offset = np.broadcast_to(values - self.nominal, margin_offset.shape)
+        else:
+            offset = np.subtract(values, self.nominal, out=scratch)
         self.sum = self.sum + offset.sum(axis=0)
         self.squares = self.squares + np.einsum("ij,ij->j", offset, offset)
         self.with_margin = self.with_margin + np.einsum("ij,ij->j", offset, margin_offset)
@@ -164,8 +169,9 @@ def run_statistics(link, result, *, trials, seed, progress=None):
         margin_offset = margin_db - margin.nominal
         margin.add(margin_db, margin_offset)
         source.add(source_dbm, margin_offset)
+        scratch = np.empty(margin_db.shape)
         for moments, row in zip(rows, drawn_rows, strict=True):
-            moments.add(row.loss_db["draws"], margin_offset)
+            moments.add(row.loss_db["draws"], margin_offset, scratch)
         missed = margin_db < result.required_margin_db
         if result.overload_dbm is not None:
             over = margin_db + result.sensitivity_dbm > result.overload_dbm

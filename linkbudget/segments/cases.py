@@ -14,6 +14,7 @@ Joints whose loss is not monotonic in a value search the tolerance box instead o
 end (:attr:`Corner.searches`).
 """
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -89,7 +90,7 @@ class _Stream:
 
     def accepted(self, count, draw, keep):
         """The next ``count`` values of ``draw(size)`` for which ``keep(values)`` holds, in order."""
-        taken, needed = [self.surplus[:count]], count - min(count, self.surplus.size)
+        taken, needed = [self.surplus[:count]] if self.surplus.size else [], count - min(count, self.surplus.size)
         self.surplus = self.surplus[count:]
         while needed > 0:
             values = draw(needed + needed // 64 + 16)
@@ -194,34 +195,65 @@ class Draws:
         if spread.batch is not None:
             z = self._batch_variate(spread.batch)
             if distribution == "normal":
-                return truncated_normal_quantile(z, spread.mean, spread.sigma, low, high)
+                tail, lower = self._once(("batch tail", spread.batch), spread.batch, lambda: _tail(z))
+                return _truncated_normal_at_tail(tail, lower, spread.mean, spread.sigma, low, high)
             return _quantile(spread, distribution, ndtr(z))
         stream = self.streams.stream(key, spread)
         if distribution == "normal":
             mean, sigma = spread.mean, spread.sigma
-            if (mean - low) > FAR_BOUND_SIGMA * sigma and (high - mean) > FAR_BOUND_SIGMA * sigma:
-                return mean + sigma * stream.generator.standard_normal(self.count)
-            return stream.accepted(self.count, lambda size: mean + sigma * stream.generator.standard_normal(size),
-                                   lambda values: (values >= low) & (values <= high))
-        return _quantile(spread, distribution, stream.generator.random(self.count))
+            low = low if mean - low <= FAR_BOUND_SIGMA * sigma else -math.inf
+            high = high if high - mean <= FAR_BOUND_SIGMA * sigma else math.inf
+            if math.isinf(low) and math.isinf(high):
+                return _scaled(stream.generator.standard_normal(self.count), mean, sigma)
+            return stream.accepted(self.count, lambda size: _scaled(stream.generator.standard_normal(size), mean,
+                                                                    sigma), _within(low, high))
+        if distribution == "uniform":
+            return stream.generator.uniform(spread.low, spread.high, self.count)
+        return stream.generator.triangular(spread.low, spread.typ_value, spread.high, self.count)
+
+
+def _scaled(standard, mean, sigma):
+    """mean + sigma·z, computed in the array of standard normal draws z."""
+    standard *= sigma
+    standard += mean
+    return standard
+
+
+def _within(low, high):
+    """The test of draws against the bounds, on the side(s) where a bound is near (not infinite)."""
+    if math.isinf(high):
+        return lambda values: values >= low
+    if math.isinf(low):
+        return lambda values: values <= high
+    return lambda values: (values >= low) & (values <= high)
 
 
 def truncated_normal_quantile(z, mean, sigma, low, high):
     """The normal(mean, sigma) truncated to [low, high], at the quantile Φ(z) of the standard normal
     variate ``z``: x = mean + sigma·Φ⁻¹(Φ(a) + Φ(z)·(Φ(b) − Φ(a))), a and b the bounds in sigma.
 
-    Each tail is computed from its own small probability (Φ(−|z|)), so neither loses precision.
+    Each tail is computed from its own small probability Φ(−|z|), so neither loses precision: below
+    the median Φ⁻¹(Φ(a) + Φ(−|z|)·m), above it −Φ⁻¹(Φ(−b) + Φ(−|z|)·m), m = Φ(b) − Φ(a) = Φ(−a) − Φ(−b).
     """
+    return _truncated_normal_at_tail(*_tail(z), mean, sigma, low, high)
+
+
+def _tail(z):
+    """(Φ(−|z|), z <= 0): the tail probability of each standard normal variate and its side."""
+    return ndtr(-np.abs(z)), z <= 0
+
+
+def _truncated_normal_at_tail(tail, lower, mean, sigma, low, high):
+    """:func:`truncated_normal_quantile` from the variates' :func:`_tail` (computed once a batch)."""
     a, b = (low - mean) / sigma, (high - mean) / sigma
-    tail = ndtr(-np.abs(z))
-    lower = z <= 0
-    probability = np.where(lower, ndtr(a) + tail * (ndtr(b) - ndtr(a)), ndtr(-b) + tail * (ndtr(-a) - ndtr(-b)))
-    standard = ndtri(probability)
-    return np.clip(mean + sigma * np.where(lower, standard, -standard), low, high)
+    mass = ndtr(b) - ndtr(a)
+    standard = ndtri(tail * mass + np.where(lower, ndtr(a), ndtr(-b)))
+    return np.clip(mean + np.where(lower, sigma, -sigma) * standard, low, high)
 
 
 def _quantile(spread, distribution, probability):
-    """The quantile of a triangular (mode ``typ``) or uniform spread over [min, max] at ``probability``."""
+    """The quantile of a triangular (mode ``typ``) or uniform spread over [min, max] at ``probability``
+    (the inverse distributions numpy's ``Generator.triangular`` and ``uniform`` draw through)."""
     low, high = spread.low, spread.high
     if distribution == "uniform":
         return low + (high - low) * probability
