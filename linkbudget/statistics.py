@@ -41,8 +41,8 @@ from linkbudget.segments.cases import Draws, DrawStreams
 
 #: The probabilities at which the margin's quantiles are reported.
 QUANTILE_PROBABILITIES = (0.001, 0.01, 0.05, 0.5)
-#: Numbers per (trials × wavelengths) array of one chunk (2 MB of float64): bounds the memory.
-CHUNK_NUMBERS = 2**18
+#: Numbers per (trials × wavelengths) array of one chunk (1 MB of float64): bounds the memory.
+CHUNK_NUMBERS = 2**17
 #: Most trials in one chunk (a short wavelength axis).
 MAX_CHUNK_TRIALS = 2**16
 #: Largest array of margins kept for the quantiles (trials × wavelengths × 8 bytes).
