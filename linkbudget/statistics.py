@@ -53,10 +53,10 @@ HISTOGRAM_BINS = 4096
 
 @dataclass(frozen=True)
 class Contribution:
-    """One row's part in the margin's spread: its own standard deviation [dB] and its share of
-    the margin variance, each over the wavelength axis."""
+    """One row's (or the source power's, ``row_id`` ``None``) part in the margin's spread: its own
+    standard deviation [dB] and its share of the margin variance, each over the wavelength axis."""
 
-    row_id: str
+    row_id: str | None
     name: str
     std_db: np.ndarray
     share: np.ndarray
@@ -194,7 +194,7 @@ def run_statistics(link, result, *, trials, seed, progress=None):
         shares = [source.covariance(trials, margin) / margin_variance,
                   *(-moments.covariance(trials, margin) / margin_variance for moments in rows)]
     variances = [source.variance(trials), *(moments.variance(trials) for moments in rows)]
-    names = [("source", "source power"), *((row.id, row.name) for row in result.rows)]
+    names = [(None, "source power"), *((row.id, row.name) for row in result.rows)]
     quantile_map = dict(zip(QUANTILE_PROBABILITIES, quantiles, strict=True))
     governing = int(np.argmin(quantile_map[QUANTILE_PROBABILITIES[0]]))
     contributions = [Contribution(row_id, name, np.sqrt(variance), np.nan_to_num(share))

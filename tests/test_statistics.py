@@ -28,6 +28,7 @@ import linkbudget.statistics as statistics
 from linkbudget.cli import app
 from linkbudget.segments.cases import Draws, DrawStreams
 from linkbudget.statistics import run_statistics
+from tests.conftest import EVERY_KIND
 from tests.segments.linktext import link_text
 
 SE = 5  # standard errors of every tolerance
@@ -171,6 +172,17 @@ def test_chunking_and_the_counting_pass_give_the_same_quantiles(monkeypatch):
     for p in kept.margin_quantiles_db:
         assert_allclose(counted.margin_quantiles_db[p], kept.margin_quantiles_db[p], rtol=0, atol=1e-12)
     assert_allclose(counted.margin_mean_db, kept.margin_mean_db, rtol=1e-12)
+
+
+def test_every_kind_draws_the_same_trials_whatever_the_chunk_size(monkeypatch):
+    link = linkbudget.load(EVERY_KIND)
+    result = linkbudget.evaluate(link)
+    whole = run_statistics(link, result, trials=3000, seed=2)
+    monkeypatch.setattr(statistics, "CHUNK_NUMBERS", 777)
+    chunked = run_statistics(link, result, trials=3000, seed=2)
+    for p in whole.margin_quantiles_db:
+        assert_allclose(chunked.margin_quantiles_db[p], whole.margin_quantiles_db[p], rtol=0, atol=0)
+    assert np.all(whole.margin_std_db > 0)
 
 
 # --- the command line ---------------------------------------------------------------------------
