@@ -136,6 +136,8 @@ def _with_trials(loaded, result, trials, seed, quiet):
     asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
                       _checked_count("--seed", seed, "seed"))
     if asked is None:
+        if seed is not None:
+            _fail_input("--seed: a seed is for trials; give --trials N too, or a statistics block in the file")
         return result
     with _trial_progress(quiet) as progress:
         return with_statistics(loaded, result, trials=asked[0], seed=asked[1], progress=progress)
