@@ -74,18 +74,23 @@ def _evaluated(path, allow_paths, required_margin_db):
         _fail_input(str(error))
 
 
-def _margin_override(text):
+def _ratio_option(option, text):
+    """The dB value of a margin option (``None`` when not given); must be >= 0 dB."""
     if text is None:
         return None
     from linkbudget.units import UnitError, parse_quantity
 
     try:
-        margin_db = parse_quantity(text, "ratio")
+        value_db = parse_quantity(text, "ratio")
     except UnitError as error:
-        _fail_input(f"--min-margin: {error}{format_hint(error.hint)}")
-    if margin_db < 0:
-        _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
-    return margin_db
+        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
+    if not value_db >= 0:
+        _fail_input(f"{option}: a margin is >= 0 dB, got {text!r}")
+    return value_db
+
+
+def _margin_override(text):
+    return _ratio_option("--min-margin", text)
 
 
 #: The options of every command that can run a statistical budget.
@@ -232,25 +237,33 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    text = _report_text(result, output_format)
-    if output is None:
-        sys.stdout.writelines([text] if isinstance(text, str) else text)
-        return
-    from linkbudget.report.output import OutputError, write_atomic
+    _write_or_print(_report_text(result, output_format), output, force, protected)
 
-    try:
-        write_atomic(output, text, overwrite=force, protected=protected)
-    except OutputError as error:
-        _fail_input(str(error))
+
+class ReportFormat(str, Enum):
+    """The formats of ``check`` and ``diff``."""
+
+    text = "text"
+    json = "json"
+    markdown = "markdown"
 
 
 @app.command(cls=_Command)
 def check(
-    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
+    links: Annotated[list[str], typer.Argument(
+        metavar="LINK", help="Link files, folders (their .yaml/.yml files), glob patterns, or - for standard input.")],
     min_margin: Annotated[str | None, typer.Option(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Report format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write the report to this file.")
+    ] = None,
+    junit: Annotated[
+        Path | None, typer.Option("--junit", metavar="FILE", help="Also write JUnit XML: one test case per link.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
     allow_path: AllowPath = None,
     min_yield: Annotated[str | None, typer.Option(
         "--min-yield", metavar="YIELD",
@@ -265,35 +278,130 @@ def check(
 
     Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
-    from linkbudget.config import ConfigError, load_link
+    import time
+
+    from linkbudget.config import ConfigError
     from linkbudget.engine import evaluate
-    from linkbudget.report.statistics_table import yield_check_line
-    from linkbudget.report.summary import check_error_line, check_line, check_summary
+    from linkbudget.inputs import expand, load_argument
+    from linkbudget.report import check as reports
 
     required = _margin_override(min_margin)
     least_yield = _yield_fraction(min_yield)
-    closes = fails = broken = 0
-    for path in links:
+    outcomes, protected = [], []
+    streaming = output is None and output_format is ReportFormat.text
+    for item in expand(links):
+        started = time.perf_counter()
         try:
-            loaded = load_link(path, allow_path or ())
+            loaded = load_argument(item, allow_path or ())
+            protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
             result = _with_trials(loaded, evaluate(loaded, required_margin_db=required), trials, seed, quiet)
+            if least_yield is not None and result.statistics is None:
+                outcome = reports.CheckOutcome(item.name, error=f"{item.name}: --min-yield needs trials: give --trials "
+                                               "N, or a statistics block ({trials: N, seed: S}) in the file",
+                                               seconds=time.perf_counter() - started)
+            else:
+                outcome = reports.CheckOutcome(item.name, result, seconds=time.perf_counter() - started,
+                                               least_yield=least_yield)
         except ConfigError as error:
-            broken += 1
-            typer.echo(check_error_line(path), err=False)
-            typer.echo(str(error), err=True)
-            continue
-        if least_yield is not None and result.statistics is None:
-            broken += 1
-            typer.echo(check_error_line(path), err=False)
-            typer.echo(f"{path}: --min-yield needs trials: give --trials N, or a statistics block "
-                       "({trials: N, seed: S}) in the file", err=True)
-            continue
-        passed = result.closes if least_yield is None else result.statistics.yield_fraction >= least_yield
-        typer.echo(check_line(result, path) if least_yield is None else yield_check_line(result, path, least_yield))
-        closes += passed
-        fails += not passed
-    typer.echo(check_summary(len(links), closes, fails, broken))
+            outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
+        outcomes.append(outcome)
+        if streaming:
+            typer.echo(outcome.line)
+        if outcome.error is not None:
+            typer.echo(outcome.error, err=True)
+    if streaming:
+        typer.echo(reports.check_summary(*reports.counts(outcomes)))
+    else:
+        render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
+                  ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
+        _write_or_print(render(outcomes), output, force, protected)
+    if junit is not None:
+        _write_or_print(reports.render_junit(outcomes), junit, force, protected)
+    _, _, fails, broken = reports.counts(outcomes)
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+def _write_or_print(text, output, force, protected):
+    """``text`` (a string or its pieces) to standard output, or atomically to the file ``output``."""
+    if output is None:
+        sys.stdout.writelines([text] if isinstance(text, str) else text)
+        return
+    _write_output(output, text, force, protected)
+
+
+def _write_output(output, text, force, protected=()):
+    """Write an output file atomically (:func:`~linkbudget.report.output.write_atomic`); a refusal exits 2."""
+    from linkbudget.report.output import OutputError, write_atomic
+
+    try:
+        write_atomic(output, text, overwrite=force, protected=protected)
+    except OutputError as error:
+        _fail_input(str(error))
+
+
+@app.command(cls=_Command)
+def diff(
+    first: Annotated[str, typer.Argument(metavar="OLD|LINK", help="The old link file, or the link to compare.")],
+    second: Annotated[str | None, typer.Argument(
+        metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
+    against: Annotated[str | None, typer.Option(
+        "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    max_margin_loss: Annotated[str | None, typer.Option(
+        "--max-margin-loss", metavar="DB",
+        help="Exit 1 when the worst-case margin falls by more than this at any wavelength, e.g. '0.5dB'.")] = None,
+    allow_path: AllowPath = None,
+):
+    """What a change did to a link: two files, or one file at two git revisions.
+
+    Exit status 0 compared (and the gate, if given, passed), 1 --max-margin-loss exceeded,
+    2 the input is wrong (a file, a revision, no repository), 3 a bug.
+    """
+    from linkbudget.config import ConfigError
+    from linkbudget.diff import compare, load_sides
+    from linkbudget.gitread import GitError
+
+    max_loss_db = _ratio_option("--max-margin-loss", max_margin_loss)
+    try:
+        old, new = load_sides(first, second, against=against, allow_paths=tuple(allow_path or ()))
+    except (GitError, ConfigError) as error:
+        _fail_input(str(error))
+    found = compare(old, new)
+    if output is None and output_format is ReportFormat.text:
+        from rich.console import Console
+
+        from linkbudget.report.diff_text import render_terminal
+
+        Console().print(render_terminal(found, max_loss_db))
+    else:
+        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force,
+                        [side.link_path for side in (old, new) if side.link_path] + [
+                            path for side in (old, new) for path in side.link.referenced_files])
+    raise typer.Exit(EXIT_FAILS if max_loss_db is not None and found.margin_loss_exceeds(max_loss_db) else EXIT_OK)
+
+
+def _diff_text(found, output_format, max_loss_db):
+    if output_format is ReportFormat.json:
+        from linkbudget.report.diff_json import diff_json_chunks
+
+        return diff_json_chunks(found, max_loss_db)
+    if output_format is ReportFormat.markdown:
+        from linkbudget.report.diff_text import render_markdown
+
+        return render_markdown(found, max_loss_db)
+    import io
+
+    from rich.console import Console
+
+    from linkbudget.report.diff_text import render_terminal
+
+    console = Console(file=io.StringIO(), width=120)
+    console.print(render_terminal(found, max_loss_db))
+    return console.file.getvalue()
 
 
 @app.command(cls=_Command)
@@ -337,6 +445,22 @@ def materials(
         _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
     except ConfigError as error:  # a malformed material file, placed
         _fail_input(str(error))
+
+
+@app.command(cls=_Command)
+def schema(
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+):
+    """Print the JSON Schema of link files, for an editor's YAML language server."""
+    from linkbudget.config.json_schema import schema_text
+
+    if output is None:
+        sys.stdout.write(schema_text())
+    else:
+        _write_output(output, schema_text(), force)
 
 
 def _interrupted(signum, frame):

@@ -18,9 +18,6 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.special import ndtr, ndtri
-
-from linkbudget.config.fields import SpreadBase
 
 
 @dataclass(frozen=True)
@@ -55,7 +52,7 @@ class Corner:
 
     def extreme(self, typical, least, largest):
         """This case's efficiency of a searched coupling: the least found (worst), the largest
-        (best), or the typical one; the typical point counts as found, so best ≥ typ ≥ worst."""
+        (best), or ``typical``, the nominal point's, which counts as found, so best ≥ typ ≥ worst."""
         if self.stack == 0:
             return typical
         return np.minimum(typical, least) if self.stack > 0 else np.maximum(typical, largest)
@@ -186,7 +183,7 @@ class Draws:
         return self._once(("batch", name), name,
                           lambda: self.streams.stream(("batch", name)).generator.standard_normal(self.count))
 
-    def _drawn_values(self, spread: SpreadBase, key):
+    def _drawn_values(self, spread, key):
         """``count`` draws of one spread, by the distributions this class documents."""
         low, high = spread.low_bound, spread.high_bound
         if spread.is_fixed:
@@ -197,6 +194,8 @@ class Draws:
             if distribution == "normal":
                 tail, lower = self._once(("batch tail", spread.batch), spread.batch, lambda: _tail(z))
                 return _truncated_normal_at_tail(tail, lower, spread.mean, spread.sigma, low, high)
+            from scipy.special import ndtr  # scipy only where a batch needs it: the command line starts fast
+
             return _quantile(spread, distribution, ndtr(z))
         stream = self.streams.stream(key, spread)
         if distribution == "normal":
@@ -240,11 +239,15 @@ def truncated_normal_quantile(z, mean, sigma, low, high):
 
 def _tail(z):
     """(Φ(−|z|), z <= 0): the tail probability of each standard normal variate and its side."""
+    from scipy.special import ndtr
+
     return ndtr(-np.abs(z)), z <= 0
 
 
 def _truncated_normal_at_tail(tail, lower, mean, sigma, low, high):
     """:func:`truncated_normal_quantile` from the variates' :func:`_tail` (computed once a batch)."""
+    from scipy.special import ndtr, ndtri
+
     a, b = (low - mean) / sigma, (high - mean) / sigma
     mass = ndtr(b) - ndtr(a)
     standard = ndtri(tail * mass + np.where(lower, ndtr(a), ndtr(-b)))
