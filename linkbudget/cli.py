@@ -49,6 +49,7 @@ class Format(str, Enum):
     json = "json"
     markdown = "markdown"
     csv = "csv"
+    html = "html"
 
 
 #: The option of every command that loads links: a folder outside the project a link may read from.
@@ -176,9 +177,14 @@ def _root(
     """Optical link budgets from physics and datasheets, kept as YAML."""
 
 
-def _report_text(result, output_format):
+def _report_text(result, output_format, link=None):
     """The report in one of the file formats (terminal output as plain text): a string, or for
-    JSON an iterator of its pieces, so that a large sweep is streamed, never one string."""
+    JSON an iterator of its pieces, so that a large sweep is streamed, never one string. The HTML
+    page shows the SHA-256 of the ``link`` file."""
+    if output_format is Format.html:
+        from linkbudget.report.html import file_sha256, render
+
+        return render(result, input_sha256=file_sha256(link))
     if output_format is Format.json:
         from linkbudget.report.json import json_chunks
 
@@ -209,10 +215,14 @@ def run(
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
-    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
     min_margin: Annotated[
         str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
+    plot: Annotated[Path | None, typer.Option(
+        "--plot", metavar="FILE",
+        help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
+             'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     allow_path: AllowPath = None,
     trials: Trials = None,
     seed: Seed = None,
@@ -223,13 +233,39 @@ def run(
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
+    _check_plot_option(plot, output)
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
     result = _with_trials(loaded, result, trials, seed, quiet)
-    _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
+    protected = [link, *loaded.referenced_files]
+    if plot is not None:
+        _write_plot(result, plot, force, protected)
+    _emit(result, output_format, output, force, protected, link)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
 
-def _emit(result, output_format, output, force, protected):
+def _check_plot_option(plot, output):
+    """Before any work: ``--plot`` names a PNG or SVG file other than ``--output``, and matplotlib is there."""
+    if plot is None:
+        return
+    from linkbudget.report.plots import PLOT_SUFFIXES, PlotsUnavailable, require_matplotlib
+
+    if plot.suffix.lower() not in PLOT_SUFFIXES:
+        _fail_input(f"--plot: {plot}: give a file name ending in {' or '.join(PLOT_SUFFIXES)}")
+    if output is not None and plot.resolve() == output.resolve():
+        _fail_input(f"--plot: {plot}: the same file as --output; give two names")
+    try:
+        require_matplotlib()
+    except PlotsUnavailable as missing:
+        _fail_input(f"--plot: {missing}")
+
+
+def _write_plot(result, plot, force, protected):
+    from linkbudget.report.plots import figure, plot_bytes, run_panels
+
+    _write_output(plot, plot_bytes(figure(run_panels(result)), plot.suffix[1:].lower()), force, protected)
+
+
+def _emit(result, output_format, output, force, protected, link=None):
     if output is None and output_format is Format.terminal:
         from rich.console import Console
 
@@ -237,7 +273,7 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    _write_or_print(_report_text(result, output_format), output, force, protected)
+    _write_or_print(_report_text(result, output_format, link), output, force, protected)
 
 
 class ReportFormat(str, Enum):
