@@ -11,7 +11,7 @@ bounded whatever the trial count; each spread has its own random stream, so the 
 changes a draw (same seed, same numbers, byte for byte).
 
 Results per wavelength: the margin's mean and standard deviation, its quantiles (exact order
-statistics, numpy's linear interpolation between the two nearest), the probability that the
+statistics, interpolated linearly between the two nearest as numpy's default quantile does), the probability that the
 margin is below the required margin and that the received power exceeds the overload, the
 root-sum-square (RSS) estimate, and every row's share of the margin variance.
 
@@ -101,8 +101,11 @@ def _chunks(link, trials, seed):
         source_dbm = draws.value(spec.source.power)
         rows, _ = budget_rows(link.segments, wavelength_m, spec.source.spectral_width, cases=(draws,))
         total_db = np.zeros((draws.count, wavelength_m.size))
-        for row in rows:
-            total_db += row.loss_db["draws"]
+        with np.errstate(invalid="ignore"):
+            for row in rows:
+                total_db += row.loss_db["draws"]
+        # +inf (total internal reflection) and a negative -inf after it add to NaN: no light arrives
+        total_db[np.isnan(total_db)] = np.inf
         yield source_dbm, rows, source_dbm - total_db - spec.receiver.sensitivity
 
 
@@ -164,29 +167,36 @@ def run_statistics(link, result, *, trials, seed, progress=None):
     fails, done = 0, 0
     lowest, highest = np.full(n_wavelengths, np.inf), np.full(n_wavelengths, -np.inf)
     kept = np.empty((trials, n_wavelengths)) if keep else None
-    for source_dbm, drawn_rows, margin_db in _chunks(link, trials, seed):
-        count = margin_db.shape[0]
-        margin_offset = margin_db - margin.nominal
-        margin.add(margin_db, margin_offset)
-        source.add(source_dbm, margin_offset)
-        scratch = np.empty(margin_db.shape)
-        for moments, row in zip(rows, drawn_rows, strict=True):
-            moments.add(row.loss_db["draws"], margin_offset, scratch)
-        missed = margin_db < result.required_margin_db
-        if result.overload_dbm is not None:
-            over = margin_db + result.sensitivity_dbm > result.overload_dbm
-            overload += over.sum(axis=0)
-            missed |= over
-        below += (margin_db < result.required_margin_db).sum(axis=0)
-        fails += int(missed.any(axis=1).sum())
-        lowest, highest = np.minimum(lowest, margin_db.min(axis=0)), np.maximum(highest, margin_db.max(axis=0))
-        if keep:
-            kept[done:done + count] = margin_db
-        done += count
-        report(done)
+    with np.errstate(invalid="ignore"):  # a blocked wavelength (margin -inf) has NaN moments
+        for source_dbm, drawn_rows, margin_db in _chunks(link, trials, seed):
+            count = margin_db.shape[0]
+            margin_offset = margin_db - margin.nominal
+            margin.add(margin_db, margin_offset)
+            source.add(source_dbm, margin_offset)
+            scratch = np.empty(margin_db.shape)
+            for moments, row in zip(rows, drawn_rows, strict=True):
+                moments.add(row.loss_db["draws"], margin_offset, scratch)
+            missed = margin_db < result.required_margin_db
+            if result.overload_dbm is not None:
+                over = margin_db + result.sensitivity_dbm > result.overload_dbm
+                overload += over.sum(axis=0)
+                missed |= over
+            below += (margin_db < result.required_margin_db).sum(axis=0)
+            fails += int(missed.any(axis=1).sum())
+            if keep:
+                kept[done:done + count] = margin_db
+            else:  # the finite extremes (light blocked by total internal reflection has margin -inf)
+                finite = np.isfinite(margin_db)
+                lowest = np.minimum(lowest, np.where(finite, margin_db, np.inf).min(axis=0))
+                highest = np.maximum(highest, np.where(finite, margin_db, -np.inf).max(axis=0))
+            done += count
+            report(done)
     if keep:
-        quantiles = np.quantile(kept, QUANTILE_PROBABILITIES, axis=0)
+        lower, upper, weight = _order_ranks(trials)
+        ordered = np.partition(kept, np.unique(np.concatenate([lower, upper])), axis=0)
         del kept
+        quantiles = _interpolated(ordered[lower], ordered[upper], weight)
+        del ordered
     else:
         quantiles = _quantiles_by_counting(link, trials, seed, lowest, highest, lambda n: report(trials + n))
     margin_variance = margin.variance(trials)
@@ -230,9 +240,13 @@ def _quantiles_by_counting(link, trials, seed, lowest, highest, report):
     them in bins, a second keeps those in the bins holding the wanted ranks (module docstring)."""
     n_wavelengths = lowest.size
     width = np.where(highest > lowest, (highest - lowest) / HISTOGRAM_BINS, 1.0)
+    lowest = np.where(np.isfinite(lowest), lowest, 0.0)  # a wavelength no trial reaches: every margin in bin 0
 
     def bins_of(margin_db):
-        return np.clip(((margin_db - lowest) / width).astype(np.int64), 0, HISTOGRAM_BINS - 1)
+        """Each margin's bin; one below the least finite margin (-inf) in the first, above it in the last."""
+        with np.errstate(invalid="ignore"):
+            scaled = np.clip((margin_db - lowest) / width, 0, HISTOGRAM_BINS - 1)
+        return np.nan_to_num(scaled, nan=0.0).astype(np.int64)
 
     counts = np.zeros((n_wavelengths, HISTOGRAM_BINS), dtype=np.int64)
     done = 0
@@ -258,8 +272,15 @@ def _quantiles_by_counting(link, trials, seed, lowest, highest, report):
         for position, (b, rank) in enumerate(zip(wanted[w], ranks, strict=True)):
             in_bin = np.sort(np.concatenate(kept[(w, int(b))]))
             values[w, position] = in_bin[rank - before[w, position]]
-    low_values, high_values = values[:, :lower.size].T, values[:, lower.size:].T
-    return low_values + weight[:, None] * (high_values - low_values)
+    return _interpolated(values[:, :lower.size].T, values[:, lower.size:].T, weight)
+
+
+def _interpolated(low_values, high_values, weight):
+    """numpy's linear quantile from its two order statistics (probability, wavelength) and the upper
+    one's weight; equal neighbours, infinite ones too (light blocked), are their own quantile."""
+    with np.errstate(invalid="ignore"):
+        between = low_values + weight[:, None] * (high_values - low_values)
+    return np.where(high_values == low_values, low_values, between)
 
 
 def requested(spec, trials=None, seed=None):

@@ -185,6 +185,20 @@ def test_every_kind_draws_the_same_trials_whatever_the_chunk_size(monkeypatch):
     assert np.all(whole.margin_std_db > 0)
 
 
+def test_light_blocked_by_total_internal_reflection_has_no_yield_and_the_same_quantiles(monkeypatch):
+    # fibre n = 1.45 into a medium of n = 1.0 at 60 degrees: past the critical angle (43.6 degrees)
+    chain = [{"name": "lead", "kind": "fiber", "length": "1 m", "attenuation": {"min": "0.3 dB/km", "max": "0.5 dB/km"},
+              "index": 1.45},
+             {"name": "slab", "kind": "medium", "thickness": "1 mm", "index": 1.0, "angle": "60 deg"},
+             {"name": "out", "kind": "fiber", "length": "1 m", "attenuation": "0.4 dB/km", "index": 1.45}]
+    kept = stats_of(chain, trials=2000)
+    monkeypatch.setattr(statistics, "KEPT_MARGIN_BYTES", 0)
+    counted = stats_of(chain, trials=2000)
+    for stats in (kept, counted):
+        assert stats.yield_fraction == 0.0
+        assert all(np.isneginf(values[0]) for values in stats.margin_quantiles_db.values())
+
+
 # --- the command line ---------------------------------------------------------------------------
 
 RUNNER = CliRunner()
