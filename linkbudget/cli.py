@@ -4,6 +4,7 @@ Exit codes, for every command: 0 the link closes / the command succeeded; 1 a li
 meet its margin or overload; 2 the input is wrong; 3 an internal error (a bug).
 """
 
+import contextlib
 import signal
 import sys
 from enum import Enum
@@ -93,6 +94,75 @@ def _margin_override(text):
     return _ratio_option("--min-margin", text)
 
 
+#: The options of every command that can run a statistical budget.
+Trials = Annotated[int | None, typer.Option(
+    "--trials", metavar="N", help="Run a statistical budget of N Monte Carlo trials (overrides the file's "
+    "statistics.trials).")]
+Seed = Annotated[int | None, typer.Option(
+    "--seed", metavar="SEED", help="Seed of the trials' random draws (default: the file's statistics.seed, else 0).")]
+Quiet = Annotated[bool, typer.Option("--quiet", "-q", help="No progress bar during the trials.")]
+
+
+def _checked_count(option, value, what):
+    """``value`` of a whole-number ``option`` within the range ``what``, or exit 2."""
+    from linkbudget.config.ranges import RANGES
+
+    problem = None if value is None else RANGES[what].problem(value)
+    if problem is not None:
+        _fail_input(f"{option}: {problem}")
+    return value
+
+
+@contextlib.contextmanager
+def _trial_progress(quiet):
+    """A progress callback drawing a bar on stderr while trials run, or ``None`` (``--quiet``, or
+    stderr is not a terminal)."""
+    from rich.console import Console
+
+    console = Console(stderr=True)
+    if quiet or not console.is_terminal:
+        yield None
+        return
+    from rich.progress import BarColumn, MofNCompleteColumn, Progress, TextColumn, TimeRemainingColumn
+
+    with Progress(TextColumn("trials"), BarColumn(), MofNCompleteColumn(), TimeRemainingColumn(),
+                  console=console, transient=True) as bar:
+        task = bar.add_task("trials", total=None)
+
+        def advance(done, total=None):
+            bar.update(task, completed=done, **({} if total is None else {"total": total}))
+
+        yield advance
+
+
+def _with_trials(loaded, result, trials, seed, quiet):
+    """``result`` with its statistical budget, when ``--trials`` or the file's ``statistics`` asks."""
+    from linkbudget.statistics import requested, with_statistics
+
+    asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
+                      _checked_count("--seed", seed, "seed"))
+    if asked is None:
+        if seed is not None:
+            _fail_input("--seed: a seed is for trials; give --trials N too, or a statistics block in the file")
+        return result
+    with _trial_progress(quiet) as progress:
+        return with_statistics(loaded, result, trials=asked[0], seed=asked[1], progress=progress)
+
+
+def _yield_fraction(text):
+    """``--min-yield`` as a fraction: ``99.9%`` or ``0.999``; exit 2 when it is not one."""
+    if text is None:
+        return None
+    stripped = text.strip()
+    try:
+        value = float(stripped[:-1]) / 100 if stripped.endswith("%") else float(stripped)
+    except ValueError:
+        _fail_input(f"--min-yield: cannot read {text!r} as a yield, e.g. '99.9%' or 0.999")
+    if not 0 < value <= 1:
+        _fail_input(f"--min-yield: a yield is above 0 and at most 100 %, got {text!r}")
+    return value
+
+
 def _version(value: bool):
     if value:
         typer.echo(f"linkbudget {__version__}")
@@ -154,13 +224,18 @@ def run(
         help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
              'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     allow_path: AllowPath = None,
+    trials: Trials = None,
+    seed: Seed = None,
+    quiet: Quiet = False,
 ):
-    """Print the budget of one link: every segment, received power, margins, verdict.
+    """Print the budget of one link: every segment, received power, margins, verdict; with
+    --trials (or the file's statistics block) its statistical budget too.
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
     _check_plot_option(plot, output)
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
+    result = _with_trials(loaded, result, trials, seed, quiet)
     protected = [link, *loaded.referenced_files]
     if plot is not None:
         _write_plot(result, plot, force, protected)
@@ -226,8 +301,16 @@ def check(
     ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
     allow_path: AllowPath = None,
+    min_yield: Annotated[str | None, typer.Option(
+        "--min-yield", metavar="YIELD",
+        help="Gate on the statistical budget instead of the worst case: pass when at least this share of "
+             "trials closes at every wavelength, e.g. '99.9%'. Needs --trials or a statistics block.")] = None,
+    trials: Trials = None,
+    seed: Seed = None,
+    quiet: Quiet = False,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes.
+    """The CI gate: one line per link, exit 0 only if every link closes (or, with --min-yield,
+    reaches the yield).
 
     Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
@@ -239,6 +322,7 @@ def check(
     from linkbudget.report import check as reports
 
     required = _margin_override(min_margin)
+    least_yield = _yield_fraction(min_yield)
     outcomes, protected, loaded_links = [], [], []
     streaming = output is None and output_format is ReportFormat.text
     for item in expand(links):
@@ -247,8 +331,14 @@ def check(
             loaded = load_argument(item, allow_path or ())
             loaded_links.append(loaded)
             protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
-            outcome = reports.CheckOutcome(item.name, evaluate(loaded, required_margin_db=required),
-                                           seconds=time.perf_counter() - started)
+            result = _with_trials(loaded, evaluate(loaded, required_margin_db=required), trials, seed, quiet)
+            if least_yield is not None and result.statistics is None:
+                outcome = reports.CheckOutcome(item.name, error=f"{item.name}: --min-yield needs trials: give --trials "
+                                               "N, or a statistics block ({trials: N, seed: S}) in the file",
+                                               seconds=time.perf_counter() - started)
+            else:
+                outcome = reports.CheckOutcome(item.name, result, seconds=time.perf_counter() - started,
+                                               least_yield=least_yield)
         except ConfigError as error:
             outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
         outcomes.append(outcome)

@@ -50,6 +50,7 @@ class LinkResult:
     source_name: str | None = None
     receiver_name: str | None = None
     cautions: tuple = CAUTIONS
+    statistics: object | None = None  # a linkbudget.statistics.Statistics, when trials were asked
 
     @cached_property
     def loss_db(self):

@@ -3,7 +3,8 @@
 A quantity field takes a string with its unit (see :mod:`linkbudget.units`) and stores the
 value in the internal unit of its dimension. A spread field takes either one quantity, or a
 mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``), or
-``{mean, sigma}``.
+``{mean, sigma}``; a mapping may add the ``distribution`` its statistical draws follow and the
+``batch`` whose members are drawn together (see :class:`linkbudget.segments.cases.Draws`).
 """
 
 import math
@@ -11,7 +12,7 @@ import sys
 import typing
 from dataclasses import dataclass
 from functools import cache
-from typing import Annotated, Any, ClassVar
+from typing import Annotated, Any, ClassVar, Literal
 
 from pydantic import (
     BaseModel,
@@ -24,6 +25,9 @@ from pydantic import (
 
 from linkbudget.config.ranges import Range, index_problem
 from linkbudget.units import parse_quantity
+
+#: The distributions a spread's statistical draws may follow (the ``distribution`` key).
+DISTRIBUTIONS = ("normal", "triangular", "uniform")
 
 #: Number of standard deviations a ``{mean, sigma}`` spread spans on each side in the
 #: worst-case budget (common practice: ±3σ covers 99.7 % of a normal distribution).
@@ -172,6 +176,11 @@ class SpreadBase(Strict):
     max: Any = None
     mean: Any = None
     sigma: Any = None
+    distribution: Literal[DISTRIBUTIONS] | None = Field(
+        None, description="How the statistical budget draws the value: normal ({mean, sigma}), triangular "
+        "({min, typ, max}) or uniform (over min to max).")
+    batch: str | None = Field(None, description="Values with the same batch name are drawn together in the "
+                              "statistical budget (fully correlated), e.g. crew-a.")
 
     @model_validator(mode="before")
     @classmethod
@@ -181,6 +190,7 @@ class SpreadBase(Strict):
     @model_validator(mode="after")
     def _consistent(self):
         given = {key for key in ("min", "typ", "max", "mean", "sigma") if getattr(self, key) is not None}
+        self._check_distribution(given)
         if given & {"mean", "sigma"}:
             if given != {"mean", "sigma"}:
                 raise ValueError("a normal spread is written {mean, sigma} and nothing else")
@@ -191,6 +201,40 @@ class SpreadBase(Strict):
         if not self.low <= self.typ_value <= self.high:
             raise InputProblem(("max",) if "max" in given else ("typ",), "a spread must have min <= typ <= max")
         return self
+
+    def _check_distribution(self, given):
+        """``distribution`` fits the keys: normal is {mean, sigma}; uniform needs min and max."""
+        if self.batch is not None and not self.batch.strip():
+            raise InputProblem(("batch",), "a batch is named by a non-empty text, e.g. batch: crew-a")
+        if self.distribution is None:
+            return
+        normal = bool(given & {"mean", "sigma"})
+        if (self.distribution == "normal") != normal:
+            raise InputProblem(("distribution",), f"a {self.distribution} spread is written "
+                               + ("{mean, sigma}" if self.distribution == "normal" else "{min, typ, max}"),
+                               "the normal distribution takes {mean, sigma}; triangular and uniform take min and max")
+        if self.distribution == "uniform" and not {"min", "max"} <= given:
+            raise InputProblem(("distribution",), "a uniform spread needs both min and max")
+
+    @property
+    def distribution_name(self):
+        """The distribution of the statistical draws: ``distribution`` as given, else normal for
+        {mean, sigma}, uniform for {min, max} alone, triangular for {min, typ, max}."""
+        if self.distribution is not None:
+            return self.distribution
+        if self.mean is not None:
+            return "normal"
+        return "uniform" if self.typ is None else "triangular"
+
+    @property
+    def low_bound(self):
+        """The lowest value the quantity may take (its valid range), −inf when open-ended."""
+        return -math.inf if self.bounds is None or self.bounds.low is None else self.bounds.low
+
+    @property
+    def high_bound(self):
+        """The highest value the quantity may take (its valid range), +inf when open-ended."""
+        return math.inf if self.bounds is None or self.bounds.high is None else self.bounds.high
 
     def _check_normal_ends(self):
         """mean ± 3σ within the bounds; only a physical floor of 0 (a loss, a length) may be passed at

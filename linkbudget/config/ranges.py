@@ -208,6 +208,10 @@ RANGES = {range_.what: range_ for range_ in (
           "ports are numbered from 1, and a splitter has at most 1024"),
     Range("port share", "`splitter.ratio` (the share of each port)", 1e-6, 1.0, "",
           f"{_COMMON}: a tap sends at least 1e-6 (-60 dB) of the power to each port"),
+    Range("trial count", "`statistics.trials`, `--trials`", 2, 1_000_000_000, "",
+          f"a spread needs 2 trials at least; 1e9 trials resolve a probability of 1e-7 and take hours ({_COMMON})"),
+    Range("seed", "`statistics.seed`, `--seed`", 0, None, "",
+          "a seed of the random generator (numpy's SeedSequence) is a whole number >= 0"),
 )}
 
 #: The valid index forms, for the README (checked by :func:`index_problem`).

@@ -5,7 +5,7 @@ from typing import Any
 import numpy as np
 from pydantic import Field, model_validator
 
-from linkbudget.config.fields import InputProblem, Strict, quantity, spread
+from linkbudget.config.fields import InputProblem, Strict, integer, quantity, spread
 from linkbudget.config.ranges import RANGES
 from linkbudget.units import WAVELENGTH_EXAMPLE
 
@@ -80,6 +80,15 @@ class Receiver(Strict):
         return self
 
 
+class StatisticsSpec(Strict):
+    """A statistical budget asked for by the file: ``trials`` Monte Carlo trials from ``seed``
+    (the command line's ``--trials`` and ``--seed`` override them)."""
+
+    trials: integer(bounds=RANGES["trial count"]) = Field(description="Monte Carlo trials, e.g. 100000.")
+    seed: integer(bounds=RANGES["seed"]) = Field(0, description="Seed of the random draws; the same seed, "
+                                                 "the same numbers.")
+
+
 class LinkSpec(Strict):
     """A whole link file. ``chain`` items are validated by their own kind (see the registry)."""
 
@@ -93,6 +102,7 @@ class LinkSpec(Strict):
     chain: list[Any] = Field(min_length=1, description="The segments, in the order light passes them.")
     part_folders: list[str] | None = Field(
         None, description="Folders searched for parts after the link's own (see linkbudget.config.parts).")
+    statistics: StatisticsSpec | None = Field(None, description="A statistical budget: {trials, seed}.")
 
     @model_validator(mode="after")
     def _one_axis(self):

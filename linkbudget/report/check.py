@@ -34,16 +34,25 @@ class CheckOutcome:
     result: object = None
     error: str | None = None
     seconds: float = 0.0
+    least_yield: float | None = None  # gate on the statistical budget's yield (``--min-yield``), not the worst case
+
+    @property
+    def passes(self):
+        if self.least_yield is not None:
+            return self.result.statistics.yield_fraction >= self.least_yield
+        return self.result.closes
 
     @property
     def status(self):
-        return ERROR if self.result is None else PASS if self.result.closes else FAIL
+        return ERROR if self.result is None else PASS if self.passes else FAIL
 
     @property
     def reasons(self):
-        """What fails, in words (empty for a link that closes or does not load)."""
+        """What fails, in words (empty for a link that passes or does not load)."""
         if self.result is None:
             return []
+        if self.least_yield is not None:
+            return [] if self.passes else ["yield below the least asked"]
         return [reason for ok, reason in ((self.result.margin_ok, "margin short"),
                                           (self.result.overload_ok, "overload exceeded")) if not ok]
 
@@ -54,7 +63,13 @@ class CheckOutcome:
     @property
     def line(self):
         """The gate's line for the link (as ``check`` prints it)."""
-        return check_error_line(self.name) if self.result is None else check_line(self.result, self.name)
+        if self.result is None:
+            return check_error_line(self.name)
+        if self.least_yield is not None:
+            from linkbudget.report.statistics_table import yield_check_line
+
+            return yield_check_line(self.result, self.name, self.least_yield)
+        return check_line(self.result, self.name)
 
 
 def counts(outcomes):

@@ -155,6 +155,35 @@ def _document(result):
         "closes": result.closes,
         "notes": list(result.notes),
         "cautions": list(result.cautions),
+        **({} if result.statistics is None else {"statistics": _statistics_document(result)}),
+    }
+
+
+def _by_probability(arrays):
+    """probability as its text (``"0.001"``) -> the array over the wavelengths."""
+    return {f"{probability:g}": _Numbers(values) for probability, values in arrays.items()}
+
+
+def _statistics_document(result):
+    """The statistical budget (:class:`linkbudget.statistics.Statistics`) of the result."""
+    stats = result.statistics
+
+    def fraction(values):
+        return None if values is None else _Numbers(values, FRACTION_RESOLUTION_DECIMALS)
+
+    return {
+        "trials": stats.trials,
+        "seed": stats.seed,
+        "margin_db": {"mean": _Numbers(stats.margin_mean_db), "std": _Numbers(stats.margin_std_db),
+                      "quantiles": _by_probability(stats.margin_quantiles_db)},
+        "probability_below_required_margin": fraction(stats.probability_below_required),
+        "probability_above_overload": fraction(stats.probability_overload),
+        "yield": _number(stats.yield_fraction, FRACTION_RESOLUTION_DECIMALS),
+        "governing_wavelength_nm": _number(float(result.wavelength_m[stats.governing_index] * 1e9),
+                                           WAVELENGTH_RESOLUTION_DECIMALS),
+        "rss_db": {"std": _Numbers(stats.rss_std_db), "quantiles": _by_probability(stats.rss_quantiles_db)},
+        "contributions": [{"id": item.row_id, "name": item.name, "std_db": _Numbers(item.std_db),
+                           "variance_share": fraction(item.share)} for item in stats.contributions],
     }
 
 

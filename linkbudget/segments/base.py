@@ -56,8 +56,12 @@ def check_mode_sizes(diameters, wavelength_m):
 
 
 def flat_over_wavelength(value_db, wavelength_m):
-    """A value that is the same at every wavelength, as an array over the wavelength axis."""
-    return np.asarray(value_db, dtype=float) * np.ones(np.shape(wavelength_m))  # draws: (n_draws, n_wavelengths)
+    """A value that is the same at every wavelength, as an array over the wavelength axis (draws:
+    (n_draws, n_wavelengths); a column of draws on a one-wavelength axis is that column itself)."""
+    value = np.asarray(value_db, dtype=float)
+    if value.shape == np.broadcast_shapes(value.shape, np.shape(wavelength_m)):
+        return value
+    return value * np.ones(np.shape(wavelength_m))
 
 
 @dataclass(frozen=True)

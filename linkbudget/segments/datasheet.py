@@ -187,7 +187,8 @@ class Splice(_Joint):
     count: integer(bounds=RANGES["splice count"]) = Field(1, description="Number of identical splices.")
 
     def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
-        return self.count * super().loss_db(wavelength_m, case)
+        """The datasheet loss of the ``count`` splices (drawn one by one in a statistical budget)."""
+        return flat_over_wavelength(case.total(self.loss, self.count), wavelength_m)
 
     def geometric_losses_db(self, wavelength_m, cases, around):
         return {case: self.count * loss for case, loss in super().geometric_losses_db(

@@ -44,7 +44,7 @@ class CountedLoss(Strict):
 
     def loss_db(self, case):
         """Total loss of the features [dB] for a budget case."""
-        return self.count * case.value(self.loss)
+        return case.total(self.loss, self.count)
 
 
 class ModeSize(Strict):

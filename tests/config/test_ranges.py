@@ -76,6 +76,10 @@ IMPOSSIBLE = [
             "required_margin: |-3 dB", "receiver.required_margin", "required margin must be from 0 dB to 60 dB"),
     refused("margin-100dB", edit("sensitivity: -30 dBm", "sensitivity: -30 dBm\n  required_margin: 100 dB"),
             "required_margin: |100 dB", "receiver.required_margin", "required margin must be from 0 dB to 60 dB"),
+    refused("trials-1", append("statistics: {trials: 1}\n"), "trials: |1}", "statistics.trials",
+            "trial count must be from 2 to 1e+09"),
+    refused("seed-negative", append("statistics: {trials: 10, seed: -1}\n"), "seed: |-1}", "statistics.seed",
+            "seed must be >= 0"),
     # fiber (chain[0])
     refused("fiber-1e12km", edit("length: 2 km", "length: 1e12 km"), "length: |1e12 km", "chain[0].length",
             "fibre length must be from 0 km to 40000 km"),
