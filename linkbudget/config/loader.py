@@ -14,6 +14,7 @@ from pydantic import BaseModel, ValidationError
 from linkbudget.config.fields import InputProblem
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
+from linkbudget.config.spectral import resolve_spectral
 from linkbudget.reader import LinkFiles, WorkingTreeReader
 from linkbudget.segments.chain import chain_problems
 from linkbudget.yamlread import ReadError, read_text
@@ -188,7 +189,7 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
             continue
         if spec is not None:
             try:
-                segment = segment.resolve(wavelength_m, files)
+                segment = resolve_spectral(segment, wavelength_m).resolve(wavelength_m, files)
             except InputProblem as problem:
                 placed = positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
                 problems.append(replace(placed, cause=problem.cause))

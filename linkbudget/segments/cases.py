@@ -90,7 +90,8 @@ class Draws:
     def _once(self, what, owner, draw):
         key = (what, id(owner))
         if key not in self._drawn:
-            self._drawn[key] = (owner, draw()[:, None])
+            values = draw()
+            self._drawn[key] = (owner, values if values.ndim == 2 else values[:, None])
         return self._drawn[key][1]
 
     def value(self, spread, *, larger_hurts=True):
@@ -109,6 +110,8 @@ class Draws:
 
 def _drawn_values(spread: SpreadBase, rng, count):
     """``count`` draws of one spread, by the distributions :class:`Draws` documents."""
+    if not isinstance(spread, SpreadBase):  # resolved over the wavelength axis: (count, n_wavelengths)
+        return spread.drawn(rng, count)
     low, high = spread.low, spread.high
     if low == high:
         return np.full(count, float(low))

@@ -19,6 +19,7 @@ from linkbudget.config.fields import (
     quantity,
 )
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral, typical
 from linkbudget.physics.decibel import transmittance_from_loss_db
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -58,7 +59,7 @@ class _Joint(SegmentSpec):
     when the joint has no gap.
     """
 
-    loss: JointLossSpread | None = None
+    loss: spectral(JointLossSpread) | None = None
     joint: JointType | None = None
     offset: OffsetSpread | None = None
     tilt: TiltSpread | None = None
@@ -165,14 +166,14 @@ class Connector(_Joint):
     """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
 
     kind: Literal["connector"]
-    return_loss: quantity("ratio", bounds=RANGES["return loss"]) | None = None
+    return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = None
 
     def reflectance(self, wavelength_m):
         """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
         (a datasheet states one value)."""
         if self.return_loss is None:
             return None
-        reflected = flat_over_wavelength(transmittance_from_loss_db(self.return_loss), wavelength_m)
+        reflected = flat_over_wavelength(transmittance_from_loss_db(typical(self.return_loss)), wavelength_m)
         return {pol: reflected for pol in POLARIZATIONS}
 
 
@@ -194,7 +195,7 @@ class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
 
     kind: Literal["element"]
-    loss: ElementLossSpread
+    loss: spectral(ElementLossSpread)
     note: str | None = None
 
     def role(self):

@@ -13,6 +13,7 @@ from pydantic import model_validator
 
 from linkbudget.config.fields import ComplexIndex, InputProblem, number, quantity
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import SilicaAttenuation, spectral
 from linkbudget.physics import fiber, flux
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -74,7 +75,7 @@ class Fiber(OpticalSegment):
 
     kind: Literal["fiber"]
     length: length_spread("fibre length")
-    attenuation: attenuation_spread("fibre attenuation")
+    attenuation: spectral(attenuation_spread("fibre attenuation"), models={"silica": SilicaAttenuation})
     mode_field_diameter: ModeFieldDiameterSpread | None = None
     core_diameter: quantity("length", bounds=RANGES["core diameter"]) | None = None
     numerical_aperture: number(bounds=RANGES["numerical aperture"]) | None = None

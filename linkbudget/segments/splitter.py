@@ -17,6 +17,7 @@ from pydantic import BeforeValidator, Field, model_validator
 
 from linkbudget.config.fields import InputProblem, integer
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
 from linkbudget.segments.base import NOTHING_AROUND, ExcessLossSpread, SegmentSpec, flat_over_wavelength
 from linkbudget.units import NUMBER_PATTERN
@@ -66,7 +67,7 @@ class Splitter(SegmentSpec):
     ports: integer(bounds=RANGES["splitter ports"]) | None = None
     ratio: SplitRatio | None = None
     port: integer(bounds=RANGES["splitter port"]) | None = None
-    excess_loss: ExcessLossSpread = Field(default="0 dB", validate_default=True)
+    excess_loss: spectral(ExcessLossSpread) = Field(default="0 dB", validate_default=True)
 
     @model_validator(mode="after")
     def _one_of_each(self):

@@ -21,6 +21,7 @@ from pydantic import model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, integer
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral
 from linkbudget.physics import flux
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -68,7 +69,7 @@ class Waveguide(OpticalSegment):
 
     kind: Literal["waveguide"]
     length: length_spread("waveguide length")
-    attenuation: attenuation_spread("waveguide attenuation") | None = None
+    attenuation: spectral(attenuation_spread("waveguide attenuation")) | None = None
     effective_index: DielectricIndex | None = None
     bends: CountedLoss | None = None
     crossings: CountedLoss | None = None
