@@ -246,6 +246,64 @@ def materials(
         _fail_input(str(error))
 
 
+#: Exit codes of ``reach`` beyond 0 (a limit found), 2 (input) and 3 (a bug).
+EXIT_NEVER_LIMITS, EXIT_NEVER_CLOSES = 4, 5
+
+
+class ReachFormat(str, Enum):
+    terminal = "terminal"
+    json = "json"
+
+
+@app.command(cls=_Command)
+def reach(
+    link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
+    vary: Annotated[str, typer.Option(
+        "--vary", metavar="SEGMENT.KEY",
+        help="The key to vary: a segment's name and key (e.g. 'buried trunk.length', 'splices.count') "
+             "or source.power.")],
+    output_format: Annotated[ReachFormat, typer.Option("--format", "-f", help="Output format.")] = ReachFormat.terminal,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    min_margin: Annotated[
+        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
+    ] = None,
+    allow_path: AllowPath = None,
+):
+    """How far one key can go: the largest value (for source.power the smallest) at which the link
+    still closes in the worst case, the margin there, the wavelength and what limits it.
+
+    Exit status 0 a limit was found, 4 the key never limits the link within its valid range,
+    5 the link closes at no value of it, 2 the input is wrong, 3 a bug.
+    """
+    from linkbudget.config import ConfigError, load_link
+    from linkbudget.reach import LIMITED, NEVER_LIMITS, ReachError, find_reach, target_of
+    from linkbudget.report.reach import reach_json, reach_text
+
+    required = _margin_override(min_margin)
+    try:
+        loaded = load_link(link, allow_path or ())
+        found = find_reach(loaded, target_of(loaded, vary), required_margin_db=required)
+    except ConfigError as error:
+        _fail_input(str(error))
+    except ReachError as error:
+        _fail_input(str(error))
+    text = reach_json(found) if output_format is ReachFormat.json else reach_text(found)
+    if output is None:
+        sys.stdout.write(text)
+    else:
+        from linkbudget.report.output import OutputError, write_atomic
+
+        try:
+            write_atomic(output, text, overwrite=force, protected=[link, *loaded.referenced_files])
+        except OutputError as error:
+            _fail_input(str(error))
+    codes = {LIMITED: EXIT_OK, NEVER_LIMITS: EXIT_NEVER_LIMITS}
+    raise typer.Exit(codes.get(found.outcome, EXIT_NEVER_CLOSES))
+
+
 def _interrupted(signum, frame):
     """Ctrl-C (or SIGINT): stop with the shell's 128 + signal number (130), never a verdict's 1."""
     typer.echo("linkbudget: interrupted", err=True)

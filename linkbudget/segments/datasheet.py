@@ -162,10 +162,24 @@ class _Joint(SegmentSpec):
 _JOINT_FACES = {"physical-contact": Faces.CONTACT, "index-matched": Faces.NONE, "air-gap": Faces.GAP}
 
 
-class Connector(_Joint):
-    """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
+class _Counted(_Joint):
+    """``count`` joints of the same kind in a row, each with the same insertion ``loss`` (or
+    geometry): the loss is multiplied by the count; the faces between media are those of one."""
+
+    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
+        return self.count * super().loss_db(wavelength_m, case)
+
+    def geometric_losses_db(self, wavelength_m, cases, around):
+        return {case: self.count * loss for case, loss in super().geometric_losses_db(
+            wavelength_m, cases, around).items()}
+
+
+class Connector(_Counted):
+    """``count`` mated connector pairs (default 1): insertion ``loss`` (or geometry) of each and an
+    optional ``return_loss`` (of one: the reflections of several are not summed)."""
 
     kind: Literal["connector"]
+    count: integer(bounds=RANGES["connector count"]) = 1
     return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = None
 
     def reflectance(self, wavelength_m):
@@ -177,18 +191,11 @@ class Connector(_Joint):
         return {pol: reflected for pol in POLARIZATIONS}
 
 
-class Splice(_Joint):
+class Splice(_Counted):
     """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
 
     kind: Literal["splice"]
     count: integer(bounds=RANGES["splice count"]) = 1
-
-    def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
-        return self.count * super().loss_db(wavelength_m, case)
-
-    def geometric_losses_db(self, wavelength_m, cases, around):
-        return {case: self.count * loss for case, loss in super().geometric_losses_db(
-            wavelength_m, cases, around).items()}
 
 
 class Element(SegmentSpec):
