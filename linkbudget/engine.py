@@ -50,6 +50,7 @@ class LinkResult:
     source_name: str | None = None
     receiver_name: str | None = None
     cautions: tuple = CAUTIONS
+    axis: str = "wavelength"  # how the link gives its wavelengths: wavelength, channels or band
 
     @cached_property
     def loss_db(self):
@@ -559,6 +560,7 @@ def evaluate(link, *, required_margin_db=None):
         sensitivity_dbm=receiver.sensitivity,
         overload_dbm=receiver.overload,
         required_margin_db=receiver.required_margin if required_margin_db is None else required_margin_db,
+        axis=next(key for key in ("channels", "band", "wavelength") if getattr(spec, key) is not None),
     )
     problem = _not_finite_problem(result, link)
     if problem is not None:
