@@ -560,7 +560,7 @@ def evaluate(link, *, required_margin_db=None):
         sensitivity_dbm=receiver.sensitivity,
         overload_dbm=receiver.overload,
         required_margin_db=receiver.required_margin if required_margin_db is None else required_margin_db,
-        axis=next(key for key in ("channels", "band", "wavelength") if getattr(spec, key) is not None),
+        axis="channels" if spec.channels is not None else "band" if spec.band is not None else "wavelength",
     )
     problem = _not_finite_problem(result, link)
     if problem is not None:

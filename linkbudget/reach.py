@@ -52,7 +52,8 @@ class ReachError(ValueError):
 @dataclass(frozen=True)
 class Target:
     """The key to vary: ``segment`` (its position in the chain, ``None`` for the source) and
-    ``key``; its valid range, whether it is a whole number, and its value in the link."""
+    ``key``; its valid range, whether it is a whole number, and its value in the link (typical,
+    and the ends of its spread)."""
 
     label: str
     segment: int | None
@@ -60,6 +61,7 @@ class Target:
     bounds: Range
     whole: bool
     current: float
+    current_ends: tuple = ()
 
     @property
     def smallest(self):
@@ -105,7 +107,7 @@ def target_of(link, text):
     """
     if text == SOURCE_POWER:
         power = link.spec.source.power
-        return Target(text, None, "power", type(power).bounds, False, power.typ_value)
+        return Target(text, None, "power", type(power).bounds, False, power.typ_value, _ends(power))
     name, dot, key = text.rpartition(".")
     names = [segment.name for segment in link.segments]
     if not dot or name not in names:
@@ -122,7 +124,12 @@ def target_of(link, text):
                          f"it has: {', '.join(sorted(keys)) or 'none'}")
     bounds, whole = keys[key]
     value = getattr(segment, key)
-    return Target(text, position, key, bounds, whole, float(getattr(value, "typ_value", value)))
+    return Target(text, position, key, bounds, whole, float(getattr(value, "typ_value", value)), _ends(value))
+
+
+def _ends(value):
+    """(low, high) of a spread that is not one value, else ``()``."""
+    return (value.low, value.high) if isinstance(value, SpreadBase) and not value.is_fixed else ()
 
 
 def variable_keys(segment):

@@ -27,6 +27,14 @@ def _internal_unit(target):
     return "" if target.whole else "m" if unit in ("nm", "um", "mm", "m", "km") else unit
 
 
+def _current_text(target):
+    """The key's value in the link: one value, or its typical value and the ends of its spread."""
+    if not target.current_ends:
+        return value_text(target, target.current)
+    low, high = (value_text(target, end) for end in target.current_ends)
+    return f"{value_text(target, target.current)} typ, from {low} to {high} (the search gives it one value)"
+
+
 def _what(target):
     return "smallest" if target.smallest else "largest"
 
@@ -46,7 +54,7 @@ def reach_text(reach):
     where = nm(reach.wavelength_m[slack.wavelength_index])
     lines = [f"Reach of {label}: the {_what(target)} value at which the link still closes in the worst case "
              f"(required margin {fixed(reach.required_margin_db)} dB)",
-             f"  in the link: {value_text(target, target.current)}",
+             f"  in the link: {_current_text(target)}",
              f"  searched:    {target.bounds.text()} (the valid range of {target.bounds.what})"]
     if reach.outcome == LIMITED:
         lines += [f"  limit:       {value_text(target, reach.value)}: worst-case margin "
@@ -78,6 +86,7 @@ def reach_dict(reach):
         "outcome": reach.outcome,
         "unit": _internal_unit(target),
         "value_in_link": rounded(target.current),
+        "spread_in_link": [rounded(end) for end in target.current_ends] or None,
         "limit": (int(reach.value) if target.whole else rounded(reach.value)) if reach.outcome == LIMITED else None,
         "value": int(reach.value) if target.whole else rounded(reach.value),
         "valid_range": {"low": target.bounds.low, "high": target.bounds.high},
