@@ -13,6 +13,7 @@ from numpy.testing import assert_allclose
 
 import linkbudget
 from tests.conftest import run_cli
+from tests.report.test_sweep_summary import BAND_LINK
 from tests.test_readme_examples import README, collapsed, readme_says, yaml_block
 
 HEAD = """\
@@ -83,18 +84,7 @@ def test_readme_reach_example():
 
 
 def test_readme_band_summary(write_link):
-    text = """\
-title: Band sweep
-band: {from: 1260 nm, to: 1625 nm, step: 0.365 nm}
-source: {power: 0 dBm}
-receiver: {sensitivity: -20 dBm, required_margin: 3 dB}
-chain:
-  - name: trunk
-    kind: fiber
-    length: 40 km
-    attenuation: {model: silica, water_peak: legacy, excess: {typ: 0.02 dB/km, max: 0.05 dB/km}}
-"""
     readme_says("(40 km of legacy fibre on the silica model, swept from 1260 to 1625 nm in 0.365 nm steps.)")
-    out = collapsed(run_cli("run", write_link(text)).stdout)
+    out = collapsed(run_cli("run", write_link(BAND_LINK)).stdout)
     (block,) = re.findall(r"```\n(Received power \(dBm\) and margin \(dB\): the worst point.*?)```", README, re.S)
     assert collapsed(block) in out

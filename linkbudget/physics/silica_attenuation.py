@@ -76,7 +76,7 @@ def rayleigh_scattering_db_per_km(wavelength_m, *, coefficient_db_per_km_um4=RAY
     Returns
     -------
     numpy.ndarray
-        Loss [dB/km].
+        Scattering loss [dB/km].
 
     Notes
     -----
@@ -131,7 +131,7 @@ def hydroxyl_peak_db_per_km(wavelength_m, *, height_db_per_km, center_m=HYDROXYL
     Returns
     -------
     numpy.ndarray
-        Loss [dB/km].
+        Absorption loss [dB/km] of the peak.
 
     Notes
     -----

@@ -18,7 +18,7 @@ chain:
   - name: trunk
     kind: fiber
     length: 40 km
-    attenuation: {1260 nm: 0.4 dB/km, 1383 nm: 0.9 dB/km, 1625 nm: 0.2 dB/km}
+    attenuation: {model: silica, water_peak: legacy, excess: {typ: 0.02 dB/km, max: 0.05 dB/km}}
 """
 
 
@@ -38,7 +38,7 @@ def test_band_of_1001_points_shows_its_worst_and_best_points(write_link):
     assert wavelengths_nm.size == 1001
     out = _terminal(path)
     assert len(out.splitlines()) < 70
-    # the table's entry at 1383 nm is the peak of the loss: the worst point is the sweep's nearest
+    # the water peak at 1383 nm dominates legacy fibre's loss: the worst point is the sweep's nearest
     worst_nm = wavelengths_nm[np.argmin(worst)]
     assert abs(worst_nm - 1383) < 0.365
     assert f"worst-case margin {worst.min():.2f} dB at {_label(worst_nm)} nm" in " ".join(out.split())
@@ -60,7 +60,7 @@ def test_channel_plan_lists_each_channel_once(write_link):
     out = _terminal(write_link(text))
     assert "per channel" in out
     assert all(out.count(f"{c} nm ") + out.count(f"{c} nm\n") >= 1 for c in channels)
-    assert "18 channels; the worst is 1391 nm" in out  # nearest to the 1383 nm peak of the table
+    assert "18 channels; the worst is 1391 nm" in out  # nearest to the 1383 nm water peak
 
 
 def test_short_axis_keeps_the_margin_table(write_link):
