@@ -20,7 +20,7 @@ from dataclasses import dataclass
 from typing import Annotated, Literal
 
 import numpy as np
-from pydantic import Field, TypeAdapter, ValidationError, WrapValidator, field_validator
+from pydantic import BeforeValidator, Field, TypeAdapter, ValidationError, WrapValidator
 
 from linkbudget.config.fields import InputProblem, SpreadBase, Strict, quantity, spread
 from linkbudget.config.ranges import RANGES
@@ -129,6 +129,16 @@ class SpectralTable:
         return SpectralValue(low, typ, high, form, mean, sigma)
 
 
+def _water_peak(value):
+    """A fibre type's name (``low``, ``legacy``, ``none``), or the OH peak's height [dB/m]."""
+    if isinstance(value, str) and value.strip()[:1].isalpha():
+        if value not in silica.HYDROXYL_PEAK_HEIGHT_DB_PER_KM:
+            raise ValueError(f"water_peak is one of {', '.join(silica.HYDROXYL_PEAK_HEIGHT_DB_PER_KM)} "
+                             f"or a height such as 0.3 dB/km; got {value!r}")
+        return value
+    return RANGES["fibre attenuation"].check(parse_quantity(value, "attenuation", "0.3 dB/km"))
+
+
 class SilicaAttenuation(Strict):
     """A fibre's attenuation from the spectral model of silica fibre
     (:func:`linkbudget.physics.silica_attenuation.silica_fibre_attenuation_db_per_km`).
@@ -140,20 +150,11 @@ class SilicaAttenuation(Strict):
     """
 
     model: Literal["silica"]
-    water_peak: Literal["low", "legacy", "none"] | quantity("attenuation", bounds=RANGES["fibre attenuation"])
+    water_peak: Annotated[str | float, BeforeValidator(_water_peak)]
     rayleigh_at_1um: quantity("attenuation", bounds=RANGES["fibre attenuation"]) = Field(
         default=f"{silica.RAYLEIGH_COEFFICIENT_DB_PER_KM_UM4} dB/km", validate_default=True)
     excess: spread("attenuation", bounds=RANGES["fibre attenuation"]) = Field(
         default=f"{silica.WAVELENGTH_INDEPENDENT_DB_PER_KM} dB/km", validate_default=True)
-
-    @field_validator("water_peak", mode="before")
-    @classmethod
-    def _named_or_height(cls, value):
-        if isinstance(value, str) and value.strip() and value.strip()[0].isalpha():
-            if value not in silica.HYDROXYL_PEAK_HEIGHT_DB_PER_KM:
-                raise ValueError(f"water_peak is one of {', '.join(silica.HYDROXYL_PEAK_HEIGHT_DB_PER_KM)} "
-                                 f"or a height such as 0.3 dB/km; got {value!r}")
-        return value
 
     @property
     def water_peak_db_per_km(self):
@@ -241,7 +242,7 @@ def _model(value, models):
         raise InputProblem(("model",), "a spectral model (model: silica) is for a fibre's attenuation; "
                            "give a value, a spread or a table over wavelength")
     name = value["model"]
-    if name not in models:
+    if not isinstance(name, str) or name not in models:
         raise InputProblem(("model",), f"unknown spectral model {name!r}; models: {', '.join(models)}")
     allowed = [field.alias or key for key, field in models[name].model_fields.items()]
     for key in value:

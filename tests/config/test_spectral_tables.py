@@ -126,3 +126,21 @@ def test_table_draws_follow_the_entry_distribution(loss, reference):
     link = linkbudget.load(_link(loss=loss))
     drawn = budget_rows(link.segments, link.spec.wavelengths_m(), cases=(Draws(20000, seed=5),))[0][1].loss_db["draws"]
     assert stats.kstest(drawn[:, 0], reference(stats).cdf).pvalue > 1e-3  # seeded: a fixed draw
+
+
+@pytest.mark.parametrize(("attenuation", "path", "phrase"), [
+    ("{model: silica}", "chain[0].attenuation", "missing required key 'water_peak'"),
+    ("{model: silica, water_peak: lowish}", "chain[0].attenuation.water_peak", "one of low, legacy, none"),
+    ("{model: silica, water_peak: -1 dB/km}", "chain[0].attenuation.water_peak", "from 0 dB/km to 10000 dB/km"),
+    ("{model: silica, water_peak: low, rayleigh: 1 dB/km}", "chain[0].attenuation.rayleigh",
+     "did you mean 'rayleigh_at_1um'?"),
+    ("{model: quartz, water_peak: low}", "chain[0].attenuation.model", "unknown spectral model"),
+    ("{model: [1], water_peak: low}", "chain[0].attenuation.model", "unknown spectral model"),
+    ("{model: silica, water_peak: low, excess: {typ: 0.1 dB/km, max: 0.05 dB/km}}",
+     "chain[0].attenuation.excess.max", "min <= typ <= max"),
+])
+def test_malformed_silica_model_is_a_placed_error(attenuation, path, phrase):
+    with pytest.raises(linkbudget.ConfigError) as raised:
+        linkbudget.load(_link(attenuation))
+    message = str(raised.value)
+    assert f": {path}: " in message.splitlines()[0] and phrase in message
