@@ -21,7 +21,8 @@ EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
 EXIT_HELP = ("Exit status: 0 the link closes (every link, for check) or the command succeeded; "
              "1 a link does not meet its margin or exceeds the receiver overload; "
              "2 the input is wrong (the message names file, line, column and key); "
-             "3 an internal error, a bug: please report it.")
+             "3 an internal error, a bug: please report it; "
+             "reach also: 4 the key never limits the link, 5 the link closes at no value of it.")
 
 app = typer.Typer(
     help="Optical link budgets from physics and datasheets, kept as YAML.\n\n" + EXIT_HELP,
