@@ -49,6 +49,7 @@ class Format(str, Enum):
     json = "json"
     markdown = "markdown"
     csv = "csv"
+    html = "html"
 
 
 #: The option of every command that loads links: a folder outside the project a link may read from.
@@ -74,18 +75,23 @@ def _evaluated(path, allow_paths, required_margin_db):
         _fail_input(str(error))
 
 
-def _margin_override(text):
+def _ratio_option(option, text):
+    """The dB value of a margin option (``None`` when not given); must be >= 0 dB."""
     if text is None:
         return None
     from linkbudget.units import UnitError, parse_quantity
 
     try:
-        margin_db = parse_quantity(text, "ratio")
+        value_db = parse_quantity(text, "ratio")
     except UnitError as error:
-        _fail_input(f"--min-margin: {error}{format_hint(error.hint)}")
-    if margin_db < 0:
-        _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
-    return margin_db
+        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
+    if not value_db >= 0:
+        _fail_input(f"{option}: a margin is >= 0 dB, got {text!r}")
+    return value_db
+
+
+def _margin_override(text):
+    return _ratio_option("--min-margin", text)
 
 
 def _version(value: bool):
@@ -102,9 +108,14 @@ def _root(
     """Optical link budgets from physics and datasheets, kept as YAML."""
 
 
-def _report_text(result, output_format):
+def _report_text(result, output_format, link=None):
     """The report in one of the file formats (terminal output as plain text): a string, or for
-    JSON an iterator of its pieces, so that a large sweep is streamed, never one string."""
+    JSON an iterator of its pieces, so that a large sweep is streamed, never one string. The HTML
+    page shows the SHA-256 of the ``link`` file."""
+    if output_format is Format.html:
+        from linkbudget.report.html import file_sha256, render
+
+        return render(result, input_sha256=file_sha256(link))
     if output_format is Format.json:
         from linkbudget.report.json import json_chunks
 
@@ -135,22 +146,52 @@ def run(
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
-    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
     min_margin: Annotated[
         str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
+    plot: Annotated[Path | None, typer.Option(
+        "--plot", metavar="FILE",
+        help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
+             'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     allow_path: AllowPath = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict.
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
+    _check_plot_option(plot, output)
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
-    _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
+    protected = [link, *loaded.referenced_files]
+    if plot is not None:
+        _write_plot(result, plot, force, protected)
+    _emit(result, output_format, output, force, protected, link)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
 
-def _emit(result, output_format, output, force, protected):
+def _check_plot_option(plot, output):
+    """Before any work: ``--plot`` names a PNG or SVG file other than ``--output``, and matplotlib is there."""
+    if plot is None:
+        return
+    from linkbudget.report.plots import PLOT_SUFFIXES, PlotsUnavailable, require_matplotlib
+
+    if plot.suffix.lower() not in PLOT_SUFFIXES:
+        _fail_input(f"--plot: {plot}: give a file name ending in {' or '.join(PLOT_SUFFIXES)}")
+    if output is not None and plot.resolve() == output.resolve():
+        _fail_input(f"--plot: {plot}: the same file as --output; give two names")
+    try:
+        require_matplotlib()
+    except PlotsUnavailable as missing:
+        _fail_input(f"--plot: {missing}")
+
+
+def _write_plot(result, plot, force, protected):
+    from linkbudget.report.plots import figure, plot_bytes, run_panels
+
+    _write_output(plot, plot_bytes(figure(run_panels(result)), plot.suffix[1:].lower()), force, protected)
+
+
+def _emit(result, output_format, output, force, protected, link=None):
     if output is None and output_format is Format.terminal:
         from rich.console import Console
 
@@ -158,10 +199,85 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    text = _report_text(result, output_format)
+    _write_or_print(_report_text(result, output_format, link), output, force, protected)
+
+
+class ReportFormat(str, Enum):
+    """The formats of ``check`` and ``diff``."""
+
+    text = "text"
+    json = "json"
+    markdown = "markdown"
+
+
+@app.command(cls=_Command)
+def check(
+    links: Annotated[list[str], typer.Argument(
+        metavar="LINK", help="Link files, folders (their .yaml/.yml files), glob patterns, or - for standard input.")],
+    min_margin: Annotated[str | None, typer.Option(
+        "--min-margin", metavar="MARGIN",
+        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+    ] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Report format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write the report to this file.")
+    ] = None,
+    junit: Annotated[
+        Path | None, typer.Option("--junit", metavar="FILE", help="Also write JUnit XML: one test case per link.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
+    allow_path: AllowPath = None,
+):
+    """The CI gate: one line per link, exit 0 only if every link closes.
+
+    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    """
+    import time
+
+    from linkbudget.config import ConfigError
+    from linkbudget.engine import evaluate
+    from linkbudget.inputs import expand, load_argument
+    from linkbudget.report import check as reports
+
+    required = _margin_override(min_margin)
+    outcomes, protected = [], []
+    streaming = output is None and output_format is ReportFormat.text
+    for item in expand(links):
+        started = time.perf_counter()
+        try:
+            loaded = load_argument(item, allow_path or ())
+            protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
+            outcome = reports.CheckOutcome(item.name, evaluate(loaded, required_margin_db=required),
+                                           seconds=time.perf_counter() - started)
+        except ConfigError as error:
+            outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
+        outcomes.append(outcome)
+        if streaming:
+            typer.echo(outcome.line)
+        if outcome.error is not None:
+            typer.echo(outcome.error, err=True)
+    if streaming:
+        typer.echo(reports.check_summary(*reports.counts(outcomes)))
+    else:
+        render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
+                  ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
+        _write_or_print(render(outcomes), output, force, protected)
+    if junit is not None:
+        _write_or_print(reports.render_junit(outcomes), junit, force, protected)
+    _, _, fails, broken = reports.counts(outcomes)
+    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+
+
+def _write_or_print(text, output, force, protected):
+    """``text`` (a string or its pieces) to standard output, or atomically to the file ``output``."""
     if output is None:
         sys.stdout.writelines([text] if isinstance(text, str) else text)
         return
+    _write_output(output, text, force, protected)
+
+
+def _write_output(output, text, force, protected=()):
+    """Write an output file atomically (:func:`~linkbudget.report.output.write_atomic`); a refusal exits 2."""
     from linkbudget.report.output import OutputError, write_atomic
 
     try:
@@ -171,37 +287,68 @@ def _emit(result, output_format, output, force, protected):
 
 
 @app.command(cls=_Command)
-def check(
-    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
-    min_margin: Annotated[str | None, typer.Option(
-        "--min-margin", metavar="MARGIN",
-        help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
+def diff(
+    first: Annotated[str, typer.Argument(metavar="OLD|LINK", help="The old link file, or the link to compare.")],
+    second: Annotated[str | None, typer.Argument(
+        metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
+    against: Annotated[str | None, typer.Option(
+        "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    max_margin_loss: Annotated[str | None, typer.Option(
+        "--max-margin-loss", metavar="DB",
+        help="Exit 1 when the worst-case margin falls by more than this at any wavelength, e.g. '0.5dB'.")] = None,
     allow_path: AllowPath = None,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes.
+    """What a change did to a link: two files, or one file at two git revisions.
 
-    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    Exit status 0 compared (and the gate, if given, passed), 1 --max-margin-loss exceeded,
+    2 the input is wrong (a file, a revision, no repository), 3 a bug.
     """
-    from linkbudget.config import ConfigError, load_link
-    from linkbudget.engine import evaluate
-    from linkbudget.report.summary import check_error_line, check_line, check_summary
+    from linkbudget.config import ConfigError
+    from linkbudget.diff import compare, load_sides
+    from linkbudget.gitread import GitError
 
-    required = _margin_override(min_margin)
-    closes = fails = broken = 0
-    for path in links:
-        try:
-            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
-        except ConfigError as error:
-            broken += 1
-            typer.echo(check_error_line(path), err=False)
-            typer.echo(str(error), err=True)
-            continue
-        typer.echo(check_line(result, path))
-        closes += result.closes
-        fails += not result.closes
-    typer.echo(check_summary(len(links), closes, fails, broken))
-    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+    max_loss_db = _ratio_option("--max-margin-loss", max_margin_loss)
+    try:
+        old, new = load_sides(first, second, against=against, allow_paths=tuple(allow_path or ()))
+    except (GitError, ConfigError) as error:
+        _fail_input(str(error))
+    found = compare(old, new)
+    if output is None and output_format is ReportFormat.text:
+        from rich.console import Console
+
+        from linkbudget.report.diff_text import render_terminal
+
+        Console().print(render_terminal(found, max_loss_db))
+    else:
+        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force,
+                        [side.link_path for side in (old, new) if side.link_path] + [
+                            path for side in (old, new) for path in side.link.referenced_files])
+    raise typer.Exit(EXIT_FAILS if max_loss_db is not None and found.margin_loss_exceeds(max_loss_db) else EXIT_OK)
+
+
+def _diff_text(found, output_format, max_loss_db):
+    if output_format is ReportFormat.json:
+        from linkbudget.report.diff_json import diff_json_chunks
+
+        return diff_json_chunks(found, max_loss_db)
+    if output_format is ReportFormat.markdown:
+        from linkbudget.report.diff_text import render_markdown
+
+        return render_markdown(found, max_loss_db)
+    import io
+
+    from rich.console import Console
+
+    from linkbudget.report.diff_text import render_terminal
+
+    console = Console(file=io.StringIO(), width=120)
+    console.print(render_terminal(found, max_loss_db))
+    return console.file.getvalue()
 
 
 @app.command(cls=_Command)
@@ -247,6 +394,22 @@ def materials(
         _fail_input(str(error))
 
 
+@app.command(cls=_Command)
+def schema(
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+):
+    """Print the JSON Schema of link files, for an editor's YAML language server."""
+    from linkbudget.config.json_schema import schema_text
+
+    if output is None:
+        sys.stdout.write(schema_text())
+    else:
+        _write_output(output, schema_text(), force)
+
+
 #: Exit codes of ``reach`` beyond 0 (a limit found), 2 (input) and 3 (a bug).
 EXIT_NEVER_LIMITS, EXIT_NEVER_CLOSES = 4, 5
 
@@ -287,20 +450,10 @@ def reach(
     try:
         loaded = load_link(link, allow_path or ())
         found = find_reach(loaded, target_of(loaded, vary), required_margin_db=required)
-    except ConfigError as error:
-        _fail_input(str(error))
-    except ReachError as error:
+    except (ConfigError, ReachError) as error:
         _fail_input(str(error))
     text = reach_json(found) if output_format is ReachFormat.json else reach_text(found)
-    if output is None:
-        sys.stdout.write(text)
-    else:
-        from linkbudget.report.output import OutputError, write_atomic
-
-        try:
-            write_atomic(output, text, overwrite=force, protected=[link, *loaded.referenced_files])
-        except OutputError as error:
-            _fail_input(str(error))
+    _write_or_print(text, output, force, [link, *loaded.referenced_files])
     codes = {LIMITED: EXIT_OK, NEVER_LIMITS: EXIT_NEVER_LIMITS}
     raise typer.Exit(codes.get(found.outcome, EXIT_NEVER_CLOSES))
 

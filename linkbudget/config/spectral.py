@@ -129,6 +129,16 @@ class SpectralTable:
         return SpectralValue(low, typ, high, form, mean, sigma)
 
 
+class _WaterPeakSchema:
+    """The JSON Schema of ``water_peak``: a fibre type's name or a height with its unit."""
+
+    def __get_pydantic_json_schema__(self, core_schema, handler):
+        from linkbudget.config.json_schema import quantity_schema
+
+        return {"anyOf": [{"enum": list(silica.HYDROXYL_PEAK_HEIGHT_DB_PER_KM)},
+                          quantity_schema("attenuation", "0.3 dB/km")]}
+
+
 def _water_peak(value):
     """A fibre type's name (``low``, ``legacy``, ``none``), or the OH peak's height [dB/m]."""
     if isinstance(value, str) and value.strip()[:1].isalpha():
@@ -140,7 +150,8 @@ def _water_peak(value):
 
 
 class SilicaAttenuation(Strict):
-    """A fibre's attenuation from the spectral model of silica fibre
+    """A fibre's attenuation from the spectral model of silica fibre: Rayleigh scattering, a flat
+    term, the infrared tail and the OH peak
     (:func:`linkbudget.physics.silica_attenuation.silica_fibre_attenuation_db_per_km`).
 
     ``water_peak``: ``low`` (low-water-peak fibre, ITU-T G.652.D), ``legacy`` (G.652.A/B), ``none``,
@@ -149,12 +160,15 @@ class SilicaAttenuation(Strict):
     (spread allowed: it carries the fibre-to-fibre and cabling spread into the budget cases).
     """
 
-    model: Literal["silica"]
-    water_peak: Annotated[str | float, BeforeValidator(_water_peak)]
+    model: Literal["silica"] = Field(description="The spectral model of silica fibre.")
+    water_peak: Annotated[str | float, BeforeValidator(_water_peak), _WaterPeakSchema()] = Field(
+        description="The OH peak at 1383 nm: low (G.652.D fibre), legacy (G.652.A/B), none, or its height.")
     rayleigh_at_1um: quantity("attenuation", bounds=RANGES["fibre attenuation"]) = Field(
-        default=f"{silica.RAYLEIGH_COEFFICIENT_DB_PER_KM_UM4} dB/km", validate_default=True)
+        default=f"{silica.RAYLEIGH_COEFFICIENT_DB_PER_KM_UM4} dB/km", validate_default=True,
+        description="Rayleigh scattering at 1 µm, A of A/λ⁴.")
     excess: spread("attenuation", bounds=RANGES["fibre attenuation"]) = Field(
-        default=f"{silica.WAVELENGTH_INDEPENDENT_DB_PER_KM} dB/km", validate_default=True)
+        default=f"{silica.WAVELENGTH_INDEPENDENT_DB_PER_KM} dB/km", validate_default=True,
+        description="The wavelength-independent term B (imperfections, microbending, cabling).")
 
     @property
     def water_peak_db_per_km(self):
@@ -253,6 +267,32 @@ def _model(value, models):
     return models[name].model_validate(value)
 
 
+@dataclass(frozen=True)
+class _SpectralSchema:
+    """The JSON Schema of a value that may be a table over wavelength or a spectral model: the
+    value's own schema, a table (wavelength keys with their unit, ``hold_ends``, each entry of the
+    value's schema) or one of ``models``. Asked for only when a schema is built
+    (:mod:`linkbudget.config.json_schema`), never while a link is validated."""
+
+    models: tuple = ()
+
+    def __get_pydantic_json_schema__(self, core_schema, handler):
+        from linkbudget.config.json_schema import quantity_pattern_of
+
+        entry = handler(core_schema)
+        table = {"type": "object", "title": "Table over wavelength",
+                 "description": "Values at wavelengths in increasing order, interpolated linearly; "
+                                f"`{HOLD_ENDS}: true` holds the end values beyond the table.",
+                 "propertyNames": {"anyOf": [{"const": HOLD_ENDS}, {"pattern": quantity_pattern_of("length")}]},
+                 "properties": {HOLD_ENDS: {"type": "boolean", "title": "Hold ends",
+                                            "description": "Hold the first and last entries' values beyond "
+                                                           "them (default false: a wavelength outside is an error)."}},
+                 "additionalProperties": entry, "minProperties": 2}
+        for model in self.models:
+            model.model_rebuild()
+        return {"anyOf": [entry, table, *(handler(model.__pydantic_core_schema__) for model in self.models)]}
+
+
 def spectral(entry_type, *, models=None):
     """The field type of a datasheet value ``entry_type`` that may also be a table over wavelength
     (:class:`SpectralTable`), or, with ``models`` (name -> model class), a spectral model written
@@ -266,7 +306,7 @@ def spectral(entry_type, *, models=None):
             return _table(value, entry_type)
         return handler(value)
 
-    return Annotated[entry_type, WrapValidator(table_or_value)]
+    return Annotated[entry_type, WrapValidator(table_or_value), _SpectralSchema(tuple(models.values()))]
 
 
 def spectral_keys(segment):

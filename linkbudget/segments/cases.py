@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from linkbudget.config.fields import SpreadBase
+from linkbudget.config.spectral import SpectralValue
 
 
 @dataclass(frozen=True)
@@ -47,7 +47,7 @@ class Corner:
 
     def extreme(self, typical, least, largest):
         """This case's efficiency of a searched coupling: the least found (worst), the largest
-        (best), or the typical one; the typical point counts as found, so best ≥ typ ≥ worst."""
+        (best), or ``typical``, the nominal point's, which counts as found, so best ≥ typ ≥ worst."""
         if self.stack == 0:
             return typical
         return np.minimum(typical, least) if self.stack > 0 else np.maximum(typical, largest)
@@ -108,9 +108,9 @@ class Draws:
         return typical
 
 
-def _drawn_values(spread: SpreadBase, rng, count):
+def _drawn_values(spread, rng, count):
     """``count`` draws of one spread, by the distributions :class:`Draws` documents."""
-    if not isinstance(spread, SpreadBase):  # resolved over the wavelength axis: (count, n_wavelengths)
+    if isinstance(spread, SpectralValue):  # resolved over the wavelength axis: (count, n_wavelengths)
         return spread.drawn(rng, count)
     low, high = spread.low, spread.high
     if low == high:

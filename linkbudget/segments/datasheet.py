@@ -10,7 +10,7 @@ wavelength; its spread (``{min, typ, max}`` or ``{mean, sigma}``) sets the budge
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr, model_validator
+from pydantic import Field, PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     DielectricIndex,
@@ -59,16 +59,19 @@ class _Joint(SegmentSpec):
     when the joint has no gap.
     """
 
-    loss: spectral(JointLossSpread) | None = None
-    joint: JointType | None = None
-    offset: OffsetSpread | None = None
-    tilt: TiltSpread | None = None
-    tilt_direction: TiltDirection | None = None
-    gap: length_spread("joint gap") | None = None
-    gap_material: str | None = None
-    gap_index: DielectricIndex | None = None
-    mode_field_diameter_before: ModeFieldDiameterSpread | None = None
-    mode_field_diameter_after: ModeFieldDiameterSpread | None = None
+    loss: spectral(JointLossSpread) | None = Field(None, description="Datasheet insertion loss (or the geometry).")
+    joint: JointType | None = Field(None, description="How the faces meet when both neighbours carry a medium.")
+    offset: OffsetSpread | None = Field(None, description="Lateral offset between the two modes.")
+    tilt: TiltSpread | None = Field(None, description="Angle between the two modes' axes.")
+    tilt_direction: TiltDirection | None = Field(None, description="Which way the tilt turns relative to the offset.")
+    gap: length_spread("joint gap") | None = Field(None, description="Separation of the two faces.")
+    gap_material: str | None = Field(
+        None, description="Catalog material or material file in the gap (or gap_index); default air.")
+    gap_index: DielectricIndex | None = Field(None, description="Refractive index in the gap (or gap_material).")
+    mode_field_diameter_before: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter on the side before the joint; default: the neighbour's.")
+    mode_field_diameter_after: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter on the side after the joint; default: the neighbour's.")
     _gap_index: np.ndarray | None = PrivateAttr(default=None)
 
     @model_validator(mode="after")
@@ -179,8 +182,9 @@ class Connector(_Counted):
     optional ``return_loss`` (of one: the reflections of several are not summed)."""
 
     kind: Literal["connector"]
-    count: integer(bounds=RANGES["connector count"]) = 1
-    return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = None
+    count: integer(bounds=RANGES["connector count"]) = Field(1, description="Number of identical mated pairs.")
+    return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = Field(
+        None, description="Datasheet return loss of the mated pair.")
 
     def reflectance(self, wavelength_m):
         """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
@@ -195,15 +199,15 @@ class Splice(_Counted):
     """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
 
     kind: Literal["splice"]
-    count: integer(bounds=RANGES["splice count"]) = 1
+    count: integer(bounds=RANGES["splice count"]) = Field(1, description="Number of identical splices.")
 
 
 class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
 
     kind: Literal["element"]
-    loss: spectral(ElementLossSpread)
-    note: str | None = None
+    loss: spectral(ElementLossSpread) = Field(description="Fixed loss; a negative loss is a gain.")
+    note: str | None = Field(None, description="A short note shown beside the row.")
 
     def role(self):
         return PASSES
