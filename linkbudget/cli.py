@@ -58,6 +58,13 @@ AllowPath = Annotated[list[Path] | None, typer.Option(
     help="Let the links read files (materials) in this folder outside their project; repeatable.")]
 
 
+#: The options of a command that writes one report and of one that overrides the required margin.
+OutputFile = Annotated[Path | None, typer.Option(
+    "--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")]
+MinMargin = Annotated[str | None, typer.Option(
+    "--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")]
+
+
 def _fail_input(message):
     typer.echo(message, err=True)
     raise typer.Exit(EXIT_INPUT)
@@ -143,13 +150,9 @@ def _report_text(result, output_format, link=None):
 def run(
     link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
-    output: Annotated[
-        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
-    ] = None,
+    output: OutputFile = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
-    min_margin: Annotated[
-        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
-    ] = None,
+    min_margin: MinMargin = None,
     plot: Annotated[Path | None, typer.Option(
         "--plot", metavar="FILE",
         help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
@@ -427,13 +430,9 @@ def reach(
         help="The key to vary: a segment's name and key (e.g. 'buried trunk.length', 'splices.count') "
              "or source.power.")],
     output_format: Annotated[ReachFormat, typer.Option("--format", "-f", help="Output format.")] = ReachFormat.terminal,
-    output: Annotated[
-        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
-    ] = None,
+    output: OutputFile = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
-    min_margin: Annotated[
-        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
-    ] = None,
+    min_margin: MinMargin = None,
     allow_path: AllowPath = None,
 ):
     """How far one key can go: the largest value (for source.power the smallest) at which the link
