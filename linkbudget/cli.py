@@ -22,7 +22,8 @@ EXIT_OK, EXIT_FAILS, EXIT_INPUT, EXIT_BUG = 0, 1, 2, 3
 EXIT_HELP = ("Exit status: 0 the link closes (every link, for check) or the command succeeded; "
              "1 a link does not meet its margin or exceeds the receiver overload; "
              "2 the input is wrong (the message names file, line, column and key); "
-             "3 an internal error, a bug: please report it.")
+             "3 an internal error, a bug: please report it; "
+             "reach also: 4 the key never limits the link, 5 the link closes at no value of it.")
 
 app = typer.Typer(
     help="Optical link budgets from physics and datasheets, kept as YAML.\n\n" + EXIT_HELP,
@@ -56,6 +57,13 @@ class Format(str, Enum):
 AllowPath = Annotated[list[Path] | None, typer.Option(
     "--allow-path", metavar="DIR",
     help="Let the links read files (materials, parts) in this folder outside their project; repeatable.")]
+
+
+#: The options of a command that writes one report and of one that overrides the required margin.
+OutputFile = Annotated[Path | None, typer.Option(
+    "--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")]
+MinMargin = Annotated[str | None, typer.Option(
+    "--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")]
 
 
 def _fail_input(message):
@@ -212,13 +220,9 @@ def _report_text(result, output_format, link=None):
 def run(
     link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
     output_format: Annotated[Format, typer.Option("--format", "-f", help="Output format.")] = Format.terminal,
-    output: Annotated[
-        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
-    ] = None,
+    output: OutputFile = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
-    min_margin: Annotated[
-        str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
-    ] = None,
+    min_margin: MinMargin = None,
     plot: Annotated[Path | None, typer.Option(
         "--plot", metavar="FILE",
         help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
@@ -554,6 +558,50 @@ def schema(
     from linkbudget.config.json_schema import schema_text
 
     _write_or_print(schema_text(parts=parts), output, force, ())
+
+
+#: Exit codes of ``reach`` beyond 0 (a limit found), 2 (input) and 3 (a bug).
+EXIT_NEVER_LIMITS, EXIT_NEVER_CLOSES = 4, 5
+
+
+class ReachFormat(str, Enum):
+    terminal = "terminal"
+    json = "json"
+
+
+@app.command(cls=_Command)
+def reach(
+    link: Annotated[Path, typer.Argument(metavar="LINK", help="The link file (YAML).")],
+    vary: Annotated[str, typer.Option(
+        "--vary", metavar="SEGMENT.KEY",
+        help="The key to vary: a segment's name and key (e.g. 'buried trunk.length', 'splices.count') "
+             "or source.power.")],
+    output_format: Annotated[ReachFormat, typer.Option("--format", "-f", help="Output format.")] = ReachFormat.terminal,
+    output: OutputFile = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    min_margin: MinMargin = None,
+    allow_path: AllowPath = None,
+):
+    """How far one key can go: the largest value (for source.power the smallest) at which the link
+    still closes in the worst case, the margin there, the wavelength and what limits it.
+
+    Exit status 0 a limit was found, 4 the key never limits the link within its valid range,
+    5 the link closes at no value of it, 2 the input is wrong, 3 a bug.
+    """
+    from linkbudget.config import ConfigError, load_link
+    from linkbudget.reach import LIMITED, NEVER_LIMITS, ReachError, find_reach, target_of
+    from linkbudget.report.reach import reach_json, reach_text
+
+    required = _margin_override(min_margin)
+    try:
+        loaded = load_link(link, allow_path or ())
+        found = find_reach(loaded, target_of(loaded, vary), required_margin_db=required)
+    except (ConfigError, ReachError) as error:
+        _fail_input(str(error))
+    text = reach_json(found) if output_format is ReachFormat.json else reach_text(found)
+    _write_or_print(text, output, force, [link, *loaded.referenced_files])
+    codes = {LIMITED: EXIT_OK, NEVER_LIMITS: EXIT_NEVER_LIMITS}
+    raise typer.Exit(codes.get(found.outcome, EXIT_NEVER_CLOSES))
 
 
 def _interrupted(signum, frame):

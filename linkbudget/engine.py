@@ -51,6 +51,7 @@ class LinkResult:
     receiver_name: str | None = None
     cautions: tuple = CAUTIONS
     statistics: object | None = None  # a linkbudget.statistics.Statistics, when trials were asked
+    axis: str = "wavelength"  # how the link gives its wavelengths: wavelength, channels or band
 
     @cached_property
     def loss_db(self):
@@ -561,6 +562,7 @@ def evaluate(link, *, required_margin_db=None):
         sensitivity_dbm=receiver.sensitivity,
         overload_dbm=receiver.overload,
         required_margin_db=receiver.required_margin if required_margin_db is None else required_margin_db,
+        axis="channels" if spec.channels is not None else "band" if spec.band is not None else "wavelength",
     )
     problem = _not_finite_problem(result, link)
     if problem is not None:

@@ -57,7 +57,7 @@ DB_TOL = 1e-6  # dB: the JSON's 1e-9 dB rounding, far below
 #: Every file of configs/ has its test below.
 CHECKED = {
     "quarry-uplink.yaml", "orchard-cwdm-ring.yaml", "flow-cell-probe.yaml", "rooftop-optical-bridge.yaml",
-    "wafer-probe-splitter-card.yaml", "fish-tank-turbidity-probe.yaml",
+    "wafer-probe-splitter-card.yaml", "fish-tank-turbidity-probe.yaml", "estuary-cwdm-backhaul.yaml",
 }
 
 
@@ -131,6 +131,28 @@ def test_orchard_cwdm_ring_budget_does_not_close():
                         {"typ": typ, "worst": worst, "best": best}, sensitivity_dbm=-23.0, required_margin_db=3.0)
     # worst margin -7 - 15.575 + 23 = 0.425 dB < 3 dB at all four channels: exit 1
     assert data["closes"] is False
+
+
+def test_estuary_cwdm_backhaul_budget():
+    # Silica fibre attenuation written out (Walker 1986 form; Keiser's coefficients, from memory):
+    # 0.9/λ⁴ (λ in µm) + 7.81e11·exp(−48.48/λ) + 0.04·exp(−4 ln2 ((λ − 1.383)/0.030)²) dB/km, plus
+    # the flat term 0.02 dB/km typ, 0.05 max. The multiplexer tables interpolate linearly between
+    # 1271, 1451 and 1611 nm: np.interp, the textbook piecewise-linear interpolant.
+    channels_um = np.arange(1271, 1612, 20) / 1e3
+    curve = (0.9 / channels_um**4 + 7.81e11 * np.exp(-48.48 / channels_um)
+             + 0.04 * np.exp(-4 * np.log(2) * ((channels_um - 1.383) / 0.030) ** 2))
+    table_um = [1.271, 1.451, 1.611]
+    mux = {"typ": np.interp(channels_um, table_um, [2.1, 1.8, 2.2]),
+           "worst": np.interp(channels_um, table_um, [2.8, 2.4, 2.9])}
+    mux["best"] = mux["typ"]
+    fibre = {"typ": 21.4 * (curve + 0.02), "worst": 21.9 * (curve + 0.05), "best": 21.4 * (curve + 0.02)}
+    joints = {"typ": 0.25 + 7 * 0.05 + 0.25, "worst": 0.5 + 7 * 0.15 + 0.5}
+    joints["best"] = joints["typ"]
+    loss = {case: 2 * mux[case] + fibre[case] + joints[case] for case in ("typ", "worst", "best")}
+    data = check_budget("estuary-cwdm-backhaul.yaml", {"typ": 2.0, "worst": 0.0, "best": 4.0}, loss,
+                        sensitivity_dbm=-21.0, required_margin_db=3.0, overload_dbm=-3.0)
+    # the O-band end is the worst channel (Rayleigh scattering and the mux), not the water peak
+    assert data["wavelengths_nm"][int(np.argmin(data["margin_db"]["worst"]))] == 1271
 
 
 def test_flow_cell_probe_budget():

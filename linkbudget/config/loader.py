@@ -15,6 +15,7 @@ from linkbudget.config.fields import InputProblem
 from linkbudget.config.parts import PartLibrary, Written, is_part_use
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
+from linkbudget.config.spectral import resolve_spectral
 from linkbudget.reader import LinkFiles, WorkingTreeReader
 from linkbudget.segments.chain import chain_problems
 from linkbudget.yamlread import ReadError, read_text
@@ -208,7 +209,7 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
             continue
         if spec is not None:
             try:
-                segment = segment.resolve(wavelength_m, segment_files)
+                segment = resolve_spectral(segment, wavelength_m).resolve(wavelength_m, segment_files)
             except InputProblem as problem:
                 problems.append(places[index].problem(problem.key_path, str(problem), problem.hint,
                                                       cause=problem.cause))

@@ -195,6 +195,8 @@ RANGES = {range_.what: range_ for range_ in (
           f"{_COMMON}: the densest fog still sees about 1 m, and no air sees past 1000 km"),
     Range("splice count", "`splice.count`", 1, 10_000, "",
           f"{_COMMON}: a route has a few hundred splices at most"),
+    Range("connector count", "`connector.count`", 1, 1_000, "",
+          f"{_COMMON}: a route crosses a few dozen patch panels at most"),
     Range("feature count", "`bends.count`, `crossings.count`", 0, 100_000, "",
           f"{_COMMON}: a chip's path has at most a few thousand bends or crossings"),
     Range("layer count", "`coating.layers` (number of layers)", 1, 500, "",

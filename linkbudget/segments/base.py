@@ -9,6 +9,7 @@ from pydantic import Field, PrivateAttr
 
 from linkbudget.config.fields import InputProblem, SpreadBase, Strict, range_notes, spread
 from linkbudget.config.ranges import RANGES, mode_size_problem
+from linkbudget.config.spectral import spectral_notes
 from linkbudget.segments.coupling import TILT_DIRECTION_COSINES
 from linkbudget.segments.roles import GUIDES
 from linkbudget.segments.rows import PartOrigin, segment_row
@@ -183,7 +184,7 @@ class SegmentSpec(Strict):
 
     def input_notes(self):
         """Notes on possible but unusual input (:func:`~linkbudget.config.fields.range_notes`)."""
-        return range_notes(self)
+        return range_notes(self) + spectral_notes(self)
 
     def mode(self, wavelength_m):
         """The guided mode the segment carries (fibre, waveguide) as a :class:`Mode`, or ``None``.

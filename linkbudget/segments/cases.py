@@ -19,6 +19,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from linkbudget.config.spectral import SpectralValue
+
 
 @dataclass(frozen=True)
 class Corner:
@@ -156,14 +158,14 @@ class Draws:
         feature drawn on its own, or all the same draw in a batch."""
         if spread.batch is not None or spread.is_fixed:
             return count * self.value(spread)
-        total = np.zeros((self.count, 1))
-        for copy in range(count):
-            total += self._copy_value(spread, copy)
-        return total
+        return sum(self._copy_value(spread, copy) for copy in range(count))
 
     def _copy_value(self, spread, copy):
-        return self._once(("value", id(spread), copy), spread,
-                          lambda: self._drawn_values(spread, (id(spread), copy))[:, None])
+        def draw():
+            values = self._drawn_values(spread, (id(spread), copy))
+            return values if values.ndim == 2 else values[:, None]
+
+        return self._once(("value", id(spread), copy), spread, draw)
 
     def unknown(self, owner, low, high, nominal):
         """Draws, shape (count, 1), of a value the link does not give, known only to lie in
@@ -184,7 +186,10 @@ class Draws:
                           lambda: self.streams.stream(("batch", name)).generator.standard_normal(self.count))
 
     def _drawn_values(self, spread, key):
-        """``count`` draws of one spread, by the distributions this class documents."""
+        """``count`` draws of one spread, by the distributions this class documents; a table over
+        the wavelength axis draws (count, n_wavelengths) by :meth:`SpectralValue.drawn`."""
+        if isinstance(spread, SpectralValue):
+            return spread.drawn(self.streams.stream(key, spread).generator, self.count)
         low, high = spread.low_bound, spread.high_bound
         if spread.is_fixed:
             return np.full(self.count, float(spread.low))

@@ -19,6 +19,7 @@ from linkbudget.config.fields import (
     quantity,
 )
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral, typical
 from linkbudget.physics.decibel import transmittance_from_loss_db
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -58,7 +59,7 @@ class _Joint(SegmentSpec):
     when the joint has no gap.
     """
 
-    loss: JointLossSpread | None = Field(None, description="Datasheet insertion loss (or the geometry).")
+    loss: spectral(JointLossSpread) | None = Field(None, description="Datasheet insertion loss (or the geometry).")
     joint: JointType | None = Field(None, description="How the faces meet when both neighbours carry a medium.")
     offset: OffsetSpread | None = Field(None, description="Lateral offset between the two modes.")
     tilt: TiltSpread | None = Field(None, description="Angle between the two modes' axes.")
@@ -164,27 +165,9 @@ class _Joint(SegmentSpec):
 _JOINT_FACES = {"physical-contact": Faces.CONTACT, "index-matched": Faces.NONE, "air-gap": Faces.GAP}
 
 
-class Connector(_Joint):
-    """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
-
-    kind: Literal["connector"]
-    return_loss: quantity("ratio", bounds=RANGES["return loss"]) | None = Field(
-        None, description="Datasheet return loss of the mated pair.")
-
-    def reflectance(self, wavelength_m):
-        """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
-        (a datasheet states one value)."""
-        if self.return_loss is None:
-            return None
-        reflected = flat_over_wavelength(transmittance_from_loss_db(self.return_loss), wavelength_m)
-        return {pol: reflected for pol in POLARIZATIONS}
-
-
-class Splice(_Joint):
-    """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
-
-    kind: Literal["splice"]
-    count: integer(bounds=RANGES["splice count"]) = Field(1, description="Number of identical splices.")
+class _Counted(_Joint):
+    """``count`` joints of the same kind in a row, each with the same insertion ``loss`` (or
+    geometry): the loss is multiplied by the count; the faces between media are those of one."""
 
     def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
         """The datasheet loss of the ``count`` splices (drawn one by one in a statistical budget)."""
@@ -195,11 +178,36 @@ class Splice(_Joint):
             wavelength_m, cases, around).items()}
 
 
+class Connector(_Counted):
+    """``count`` mated connector pairs (default 1): insertion ``loss`` (or geometry) of each and an
+    optional ``return_loss`` (of one: the reflections of several are not summed)."""
+
+    kind: Literal["connector"]
+    count: integer(bounds=RANGES["connector count"]) = Field(1, description="Number of identical mated pairs.")
+    return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = Field(
+        None, description="Datasheet return loss of the mated pair.")
+
+    def reflectance(self, wavelength_m):
+        """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
+        (a datasheet states one value)."""
+        if self.return_loss is None:
+            return None
+        reflected = flat_over_wavelength(transmittance_from_loss_db(typical(self.return_loss)), wavelength_m)
+        return {pol: reflected for pol in POLARIZATIONS}
+
+
+class Splice(_Counted):
+    """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
+
+    kind: Literal["splice"]
+    count: integer(bounds=RANGES["splice count"]) = Field(1, description="Number of identical splices.")
+
+
 class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
 
     kind: Literal["element"]
-    loss: ElementLossSpread = Field(description="Fixed loss; a negative loss is a gain.")
+    loss: spectral(ElementLossSpread) = Field(description="Fixed loss; a negative loss is a gain.")
     note: str | None = Field(None, description="A short note shown beside the row.")
 
     def role(self):

@@ -13,6 +13,7 @@ from pydantic import Field, model_validator
 
 from linkbudget.config.fields import ComplexIndex, InputProblem, number, quantity
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import SilicaAttenuation, spectral
 from linkbudget.physics import fiber, flux
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -74,7 +75,7 @@ class Fiber(OpticalSegment):
 
     kind: Literal["fiber"]
     length: length_spread("fibre length") = Field(description="Length of the fibre.")
-    attenuation: attenuation_spread("fibre attenuation") = Field(
+    attenuation: spectral(attenuation_spread("fibre attenuation"), models={"silica": SilicaAttenuation}) = Field(
         description="Datasheet attenuation per length, e.g. 0.35 dB/km.")
     mode_field_diameter: ModeFieldDiameterSpread | None = Field(
         None, description="Mode field diameter (1/e² intensity), for the joints beside it.")

@@ -17,6 +17,7 @@ from pydantic import BeforeValidator, Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Written, integer
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
 from linkbudget.segments.base import NOTHING_AROUND, ExcessLossSpread, SegmentSpec, flat_over_wavelength
 from linkbudget.units import NUMBER_PATTERN
@@ -70,7 +71,7 @@ class Splitter(SegmentSpec):
         None, description="A tap: shares a/b such as 2/98, or the followed port's fraction (or ports).")
     port: integer(bounds=RANGES["splitter port"]) | None = Field(
         None, description="Output port the link follows, from 1.")
-    excess_loss: ExcessLossSpread = Field(default="0 dB", validate_default=True,
+    excess_loss: spectral(ExcessLossSpread) = Field(default="0 dB", validate_default=True,
                                           description="Datasheet excess loss on top of the split.")
 
     @model_validator(mode="after")

@@ -21,6 +21,7 @@ from pydantic import Field, model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, integer
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.spectral import spectral
 from linkbudget.physics import flux
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -68,7 +69,7 @@ class Waveguide(OpticalSegment):
 
     kind: Literal["waveguide"]
     length: length_spread("waveguide length") = Field(description="Length of the waveguide.")
-    attenuation: attenuation_spread("waveguide attenuation") | None = Field(
+    attenuation: spectral(attenuation_spread("waveguide attenuation")) | None = Field(
         None, description="Propagation loss per length, e.g. 2 dB/cm (or effective_index).")
     effective_index: DielectricIndex | None = Field(
         None, description="Complex effective index of the mode; its κ gives the loss (or attenuation).")

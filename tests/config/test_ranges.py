@@ -136,6 +136,8 @@ IMPOSSIBLE = [
             "splice count must be from 1 to 10000"),
     refused("splice-count-1e6", extra("kind: splice", "loss: 0.1 dB", "count: 1000000"), "count: |1000000",
             "chain[2].count", "splice count must be from 1 to 10000"),
+    refused("connector-count-2000", extra("kind: connector", "loss: 0.3 dB", "count: 2000"), "count: |2000",
+            "chain[2].count", "connector count must be from 1 to 1000"),
     refused("splice-70dB", extra("kind: splice", "loss: 70 dB"), "loss: |70 dB", "chain[2].loss", JOINT),
     refused("element-minus-1000dB", extra("kind: element", "loss: -1000 dB"), "loss: |-1000 dB", "chain[2].loss",
             "element loss must be from -60 dB to 100 dB"),

@@ -1,0 +1,104 @@
+"""The answer of ``linkbudget reach`` as text for a terminal and as JSON (schema ``linkbudget.reach/1``).
+
+Both read a :class:`linkbudget.reach.Reach` and compute nothing of their own.
+"""
+
+import json
+
+from linkbudget import __version__
+from linkbudget.reach import LIMITED, NEVER_LIMITS
+from linkbudget.report.summary import fixed
+from linkbudget.text import escaped, length_text, nm, wavelength_text
+
+SCHEMA = "linkbudget.reach/1"
+
+def value_text(target, value):
+    """The varied key's value in the unit that reads best: a length, a count, dBm or dB."""
+    unit = target.bounds.unit
+    if target.whole:
+        return f"{int(value)}"
+    if unit in ("nm", "um", "mm", "m", "km"):
+        return length_text(value) if value < 1e3 else f"{value / 1e3:.6g} km"
+    return f"{value:.6g} {unit}".strip()
+
+
+def _internal_unit(target):
+    unit = target.bounds.unit
+    return "" if target.whole else "m" if unit in ("nm", "um", "mm", "m", "km") else unit
+
+
+def _current_text(target):
+    """The key's value in the link: one value, or its typical value and the ends of its spread."""
+    if not target.current_ends:
+        return value_text(target, target.current)
+    low, high = (value_text(target, end) for end in target.current_ends)
+    return f"{value_text(target, target.current)} typ, from {low} to {high} (the search gives it one value)"
+
+
+def _what(target):
+    return "smallest" if target.smallest else "largest"
+
+
+def _limit_reason(slack, required_margin_db, wavelength_m):
+    where = nm(wavelength_m[slack.wavelength_index])
+    if slack.limited_by == "overload":
+        return f"the receiver overload (the best-case received power exceeds it at {where})"
+    return (f"the receiver sensitivity (the worst-case margin falls below the required "
+            f"{fixed(required_margin_db)} dB at {where})")
+
+
+def reach_text(reach):
+    """The answer in a few lines of plain text."""
+    target, slack = reach.target, reach.slack
+    label = escaped(target.label)
+    where = nm(reach.wavelength_m[slack.wavelength_index])
+    lines = [f"Reach of {label}: the {_what(target)} value at which the link still closes in the worst case "
+             f"(required margin {fixed(reach.required_margin_db)} dB)",
+             f"  in the link: {_current_text(target)}",
+             f"  searched:    {target.bounds.text()} (the valid range of {target.bounds.what})"]
+    if reach.outcome == LIMITED:
+        lines += [f"  limit:       {value_text(target, reach.value)}: worst-case margin "
+                  f"{fixed(slack.margin_db, signed=True)} dB at {where}",
+                  f"  limited by:  {_limit_reason(reach.failing, reach.required_margin_db, reach.wavelength_m)}"]
+    elif reach.outcome == NEVER_LIMITS:
+        lines.append(f"  never limits: the link still closes at {value_text(target, reach.value)}, the end of "
+                     f"the valid range (worst-case margin {fixed(slack.margin_db, signed=True)} dB at {where})")
+    else:
+        lines.append(f"  never closes: no value in the range closes the link; closest at "
+                     f"{value_text(target, reach.value)}, short by {fixed(-slack.slack_db)} dB, limited by "
+                     f"{_limit_reason(slack, reach.required_margin_db, reach.wavelength_m)}")
+    return "\n".join(lines) + "\n"
+
+
+def reach_dict(reach):
+    """The answer as the JSON document of schema :data:`SCHEMA`."""
+    target, slack = reach.target, reach.slack
+
+    def rounded(value):
+        return round(float(value), 9) + 0.0
+
+    limiting = reach.failing if reach.outcome == LIMITED else slack
+    return {
+        "schema": SCHEMA,
+        "tool_version": __version__,
+        "vary": target.label,
+        "answer": _what(target),
+        "outcome": reach.outcome,
+        "unit": _internal_unit(target),
+        "value_in_link": rounded(target.current),
+        "spread_in_link": [rounded(end) for end in target.current_ends] or None,
+        "limit": (int(reach.value) if target.whole else rounded(reach.value)) if reach.outcome == LIMITED else None,
+        "value": int(reach.value) if target.whole else rounded(reach.value),
+        "valid_range": {"low": target.bounds.low, "high": target.bounds.high},
+        "required_margin_db": rounded(reach.required_margin_db),
+        "worst_margin_db": rounded(slack.margin_db),
+        "slack_db": rounded(slack.slack_db),
+        "limiting_wavelength_nm": float(wavelength_text(reach.wavelength_m[limiting.wavelength_index])),
+        "limited_by": limiting.limited_by if reach.outcome != NEVER_LIMITS else None,
+    }
+
+
+def reach_json(reach):
+    """:func:`reach_dict` as indented JSON text with a final newline."""
+    return json.dumps(reach_dict(reach), indent=2) + "\n"
+
