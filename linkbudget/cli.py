@@ -157,17 +157,17 @@ def _with_trials(loaded, result, trials, seed, quiet):
         return with_statistics(loaded, result, trials=asked[0], seed=asked[1], progress=progress)
 
 
-def _yield_fraction(text):
-    """``--min-yield`` as a fraction: ``99.9%`` or ``0.999``; exit 2 when it is not one."""
+def _yield_fraction(text, option="--min-yield"):
+    """``option`` (a yield) as a fraction: ``99.9%`` or ``0.999``; exit 2 when it is not one."""
     if text is None:
         return None
     stripped = text.strip()
     try:
         value = float(stripped[:-1]) / 100 if stripped.endswith("%") else float(stripped)
     except ValueError:
-        _fail_input(f"--min-yield: cannot read {text!r} as a yield, e.g. '99.9%' or 0.999")
+        _fail_input(f"{option}: cannot read {text!r} as a yield, e.g. '99.9%' or 0.999")
     if not 0 < value <= 1:
-        _fail_input(f"--min-yield: a yield is above 0 and at most 100 %, got {text!r}")
+        _fail_input(f"{option}: a yield is above 0 and at most 100 %, got {text!r}")
     return value
 
 
@@ -581,9 +581,16 @@ def reach(
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
     min_margin: MinMargin = None,
     allow_path: AllowPath = None,
+    stated_yield: Annotated[str | None, typer.Option(
+        "--yield", metavar="YIELD",
+        help="Search the limit where this share of the trials still closes, e.g. '99.9%', instead of the worst "
+             "case. Needs --trials or a statistics block.")] = None,
+    trials: Trials = None,
+    seed: Seed = None,
 ):
     """How far one key can go: the largest value (for source.power the smallest) at which the link
-    still closes in the worst case, the margin there, the wavelength and what limits it.
+    still closes in the worst case (with --yield: in that share of the trials), the margin there,
+    the wavelength and what limits it.
 
     Exit status 0 a limit was found, 4 the key never limits the link within its valid range,
     5 the link closes at no value of it, 2 the input is wrong, 3 a bug.
@@ -595,13 +602,32 @@ def reach(
     required = _margin_override(min_margin)
     try:
         loaded = load_link(link, allow_path or ())
-        found = find_reach(loaded, target_of(loaded, vary), required_margin_db=required)
+        slack = _reach_slack(loaded, _yield_fraction(stated_yield, "--yield"), trials, seed)
+        found = find_reach(loaded, target_of(loaded, vary), slack=slack, required_margin_db=required)
     except (ConfigError, ReachError) as error:
         _fail_input(str(error))
     text = reach_json(found) if output_format is ReachFormat.json else reach_text(found)
     _write_or_print(text, output, force, [link, *loaded.referenced_files])
     codes = {LIMITED: EXIT_OK, NEVER_LIMITS: EXIT_NEVER_LIMITS}
     raise typer.Exit(codes.get(found.outcome, EXIT_NEVER_CLOSES))
+
+
+def _reach_slack(loaded, stated_yield, trials, seed):
+    """The slack function of ``reach``: the worst case, or with ``--yield`` the yield over the
+    trials of ``--trials`` (or the file's statistics block)."""
+    from linkbudget.reach import worst_case_slack
+    from linkbudget.reach_yield import YieldCriterion
+    from linkbudget.statistics import requested
+
+    asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
+                      _checked_count("--seed", seed, "seed"))
+    if stated_yield is None:
+        if trials is not None or seed is not None:
+            _fail_input("--trials/--seed: reach runs trials only for a yield; give --yield too, e.g. --yield 99.9%")
+        return worst_case_slack
+    if asked is None:
+        _fail_input("--yield needs trials: give --trials N, or a statistics block ({trials: N, seed: S}) in the file")
+    return YieldCriterion(stated_yield, *asked)
 
 
 def _interrupted(signum, frame):

@@ -231,13 +231,29 @@ def find_reach(link, target, *, slack=worst_case_slack, required_margin_db=None)
     if beyond < 0 or beyond >= grid.size:
         return reach(NEVER_LIMITS, grid[edge], slacks[edge])
     span = sorted((grid[edge], grid[beyond]))
-    root = brentq(lambda value: at(value).slack_db, *span, xtol=1e-12 * max(abs(span[1]), 1.0), rtol=1e-12)
+    step = 1e-12 * max(abs(span[1]), 1.0)
+    root = brentq(lambda value: at(value).slack_db, *span, xtol=step, rtol=1e-12)
     if target.whole:
         return _whole_limit(at, reach, root, target.smallest)
     found = at(root)
     if found.slack_db < -ROOT_TOLERANCE_DB:
         root, found = grid[edge], slacks[edge]
+    root, found = _closing_side(at, root, found, grid[edge], step)
     return reach(LIMITED, root, found, slacks[beyond])
+
+
+def _closing_side(at, root, found, closing_value, step):
+    """(value, slack) of a root that fails by round-off moved toward ``closing_value`` in doubling
+    steps until it closes, so the limit reported always closes (a yield's count of closing trials)."""
+    direction = np.sign(closing_value - root)
+    for power in range(64):
+        if found.slack_db >= 0:
+            break
+        root = root + direction * step * 2.0**power
+        if (closing_value - root) * direction <= 0:
+            return closing_value, at(closing_value)
+        found = at(root)
+    return root, found
 
 
 def _whole_limit(at, reach, root, smallest):

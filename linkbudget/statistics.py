@@ -296,3 +296,25 @@ def requested(spec, trials=None, seed=None):
 def with_statistics(link, result, *, trials, seed, progress=None):
     """``result`` holding the statistical budget of ``link`` (:func:`run_statistics`)."""
     return replace(result, statistics=run_statistics(link, result, trials=trials, seed=seed, progress=progress))
+
+
+def trial_slacks_db(link, result, *, trials, seed):
+    """Each trial's slack [dB] and where it binds, from the same draws as :func:`run_statistics`.
+
+    A trial's slack is the least, over the wavelength axis, of margin − required margin and
+    overload − received power; the trial closes (counts in the yield) where it is ≥ 0, the same
+    test as :attr:`Statistics.yield_fraction`. Returns ``(slack_db, wavelength_index,
+    by_overload, margin_db)``, each of length ``trials``: the slack, the wavelength where it binds,
+    whether the overload binds there, and the trial's margin at that wavelength.
+    """
+    parts = []
+    for _, _, margin_db in _chunks(link, trials, seed):
+        slack_db = margin_db - result.required_margin_db
+        over_db = (np.full(slack_db.shape, np.inf) if result.overload_dbm is None
+                   else result.overload_dbm - result.sensitivity_dbm - margin_db)
+        by_overload = over_db < slack_db
+        slack_db = np.where(by_overload, over_db, slack_db)
+        index = np.argmin(slack_db, axis=1)
+        picked = np.arange(index.size), index
+        parts.append((slack_db[picked], index, by_overload[picked], margin_db[picked]))
+    return tuple(np.concatenate(column) for column in zip(*parts, strict=True))

@@ -21,7 +21,7 @@ def _percent(fraction):
     return f"{100 * float(fraction):.3g} %"
 
 
-def _yield_percent(fraction):
+def yield_percent(fraction):
     """A yield as a percentage to a thousandth of a percent (99.920 %, so 99.9 % is never rounded up to)."""
     return f"{100 * float(fraction):.3f} %"
 
@@ -74,7 +74,7 @@ def yield_sentence(result):
     """One sentence: the share of trials in which the link closes at every wavelength."""
     stats = result.statistics
     return (f"Yield: the link closes (margin >= {fixed(result.required_margin_db)} dB, no overload) at every "
-            f"wavelength in {_yield_percent(stats.yield_fraction)} of {stats.trials} trials.")
+            f"wavelength in {yield_percent(stats.yield_fraction)} of {stats.trials} trials.")
 
 
 def statistics_section(result):
@@ -94,7 +94,7 @@ def yield_check_line(result, path, least_yield):
     smallest = next(iter(stats.margin_quantiles_db))
     word = "PASS " if stats.yield_fraction >= least_yield else "FAIL "
     quantile = float(stats.margin_quantiles_db[smallest].min())
-    return (f"{word}  {escaped(path)}: yield {_yield_percent(stats.yield_fraction)} "
-            f"(at least {_yield_percent(least_yield)} asked; {stats.trials} trials, seed {stats.seed}), "
+    return (f"{word}  {escaped(path)}: yield {yield_percent(stats.yield_fraction)} "
+            f"(at least {yield_percent(least_yield)} asked; {stats.trials} trials, seed {stats.seed}), "
             f"{100 * smallest:g} % margin "
             f"{fixed(quantile, signed=True)} dB, required {fixed(result.required_margin_db)} dB")
