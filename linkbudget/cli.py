@@ -190,9 +190,9 @@ def _report_text(result, output_format, link=None):
     JSON an iterator of its pieces, so that a large sweep is streamed, never one string. The HTML
     page shows the SHA-256 of the ``link`` file."""
     if output_format is Format.html:
-        from linkbudget.report.html import file_sha256, render
+        from linkbudget.report.html import file_sha256, render, statistics_sections
 
-        return render(result, input_sha256=file_sha256(link))
+        return render(result, input_sha256=file_sha256(link), sections=statistics_sections(result))
     if output_format is Format.json:
         from linkbudget.report.json import json_chunks
 

@@ -49,6 +49,8 @@ MAX_CHUNK_TRIALS = 2**16
 KEPT_MARGIN_BYTES = 192 * 2**20
 #: Bins per wavelength of the counting pass of a run too large to keep its margins.
 HISTOGRAM_BINS = 4096
+#: Bins of the margin histogram the reports draw (:attr:`Statistics.margin_histogram`).
+REPORT_HISTOGRAM_BINS = 40
 
 
 @dataclass(frozen=True)
@@ -78,6 +80,7 @@ class Statistics:
     rss_quantiles_db: dict  # probability -> nominal margin + Φ⁻¹(p)·σ_RSS
     contributions: tuple  # of Contribution, largest share (at the governing wavelength) first
     governing_index: int  # the wavelength with the least margin at the smallest probability
+    margin_histogram: tuple | None = None  # (edges, counts) at the governing wavelength; None if not kept
 
     @property
     def yield_fraction(self):
@@ -194,7 +197,6 @@ def run_statistics(link, result, *, trials, seed, progress=None):
     if keep:
         lower, upper, weight = _order_ranks(trials)
         ordered = np.partition(kept, np.unique(np.concatenate([lower, upper])), axis=0)
-        del kept
         quantiles = _interpolated(ordered[lower], ordered[upper], weight)
         del ordered
     else:
@@ -207,6 +209,8 @@ def run_statistics(link, result, *, trials, seed, progress=None):
     names = [(None, "source power"), *((row.id, row.name) for row in result.rows)]
     quantile_map = dict(zip(QUANTILE_PROBABILITIES, quantiles, strict=True))
     governing = int(np.argmin(quantile_map[QUANTILE_PROBABILITIES[0]]))
+    histogram = margin_histogram(kept[:, governing], result.required_margin_db) if keep else None
+    del kept
     contributions = [Contribution(row_id, name, np.sqrt(variance), np.nan_to_num(share))
                      for (row_id, name), variance, share in zip(names, variances, shares, strict=True)
                      if np.any(variance > 0)]
@@ -224,7 +228,21 @@ def run_statistics(link, result, *, trials, seed, progress=None):
         rss_quantiles_db={p: result.margin_db["typ"] + ndtri(p) * rss_std for p in QUANTILE_PROBABILITIES},
         contributions=tuple(contributions),
         governing_index=governing,
+        margin_histogram=histogram,
     )
+
+
+def margin_histogram(margins_db, required_margin_db, *, bins=REPORT_HISTOGRAM_BINS):
+    """(edges [dB], counts) of the finite ``margins_db`` in ``bins`` equal bins (or at the given
+    edges), the required margin [dB] made one more edge when it falls inside, so every bin lies
+    wholly below it or wholly at or above it."""
+    margins_db = np.asarray(margins_db, dtype=float).ravel()
+    margins_db = margins_db[np.isfinite(margins_db)]
+    edges = np.histogram_bin_edges(margins_db, bins=bins)
+    if edges[0] < required_margin_db < edges[-1]:
+        edges = np.union1d(edges, [required_margin_db])
+    counts, _ = np.histogram(margins_db, bins=edges)
+    return edges, counts
 
 
 def _order_ranks(trials):

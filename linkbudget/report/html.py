@@ -132,18 +132,47 @@ def margin_section(result):
     return Section("Margin per wavelength", "margin-section", intro + table)
 
 
-def plots_section(panels):
+def plots_section(panels, *, heading="Plots", section_id="plots-section", salt="linkbudget"):
     """The diagrams (:class:`linkbudget.report.plots.Panel` s) as inline SVG, each in a figure
-    with its caption; without matplotlib, a line saying how to get them."""
+    with its caption; without matplotlib, a line saying how to get them. ``salt`` starts the SVG
+    ids (one of its own per section of a page)."""
     from linkbudget.report import plots
 
     try:
         plots.require_matplotlib()
     except plots.PlotsUnavailable as missing:
-        return Section("Plots", "plots-section", f'<p class="missing-plots">{text(missing)}</p>')
-    figures = [f"<figure>{plots.inline_svg(plots.figure([panel]), salt=f'linkbudget-{number}')}"
+        return Section(heading, section_id, f'<p class="missing-plots">{text(missing)}</p>')
+    figures = [f"<figure>{plots.inline_svg(plots.figure([panel]), salt=f'{salt}-{number}')}"
                f"<figcaption>{text(panel.name)}</figcaption></figure>" for number, panel in enumerate(panels)]
-    return Section("Plots", "plots-section", "\n".join(figures))
+    return Section(heading, section_id, "\n".join(figures))
+
+
+def statistics_sections(result):
+    """The statistical budget (:mod:`linkbudget.report.statistics_table`) and its margin histogram,
+    as sections for :func:`render`; none without trials."""
+    from linkbudget.report import statistics_table as tables
+    from linkbudget.report.plots import statistics_panels
+
+    if result.statistics is None:
+        return []
+    headers, rows, caption = tables.quantile_rows(result)
+    body = [f"<p>{text(tables.quantile_title(result))}</p>",
+            _table([header.replace("\n", " ") for header in headers], rows, table_id="statistics", text_columns=1),
+            f"<p>{text(caption)}</p>", f'<p id="yield">{text(tables.yield_sentence(result))}</p>']
+    contributions = tables.contribution_rows(result)
+    if contributions:
+        body += [f"<p>{text(tables.contribution_title(result))}</p>",
+                 _table(list(tables.CONTRIBUTION_HEADERS), [[text(name), *numbers] for name, *numbers in contributions],
+                        table_id="contributions", text_columns=1)]
+    if result.statistics.margin_histogram is None:
+        body.append('<p class="no-histogram">No margin histogram: this run has more trials × wavelengths than '
+                    "the margins it keeps in memory.</p>")
+    sections = [Section("Statistical budget", "statistics-section", "\n".join(body))]
+    panels = statistics_panels(result)
+    if panels:
+        sections.append(plots_section(panels, heading="Margin histogram", section_id="histogram-section",
+                                      salt="linkbudget-histogram"))
+    return sections
 
 
 def cautions_section(cautions):

@@ -84,6 +84,26 @@ def render(result):
         [[nm(wavelength), db_text(result.received_dbm["typ"][i]), db_text(result.received_dbm["worst"][i]),
           db_text(result.margin_db["typ"][i]), db_text(result.margin_db["worst"][i]), str(status[i])]
          for i, wavelength in ((i, result.wavelength_m[i]) for i in shown)])
+    lines += statistics_lines(result)
     lines += [""] + [f"- note: {markdown_text(note)}" for note in result.notes]
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
     return "\n".join(lines)
+
+
+def statistics_lines(result):
+    """The statistical budget's tables and yield (:mod:`linkbudget.report.statistics_table`), or no
+    lines without trials."""
+    from linkbudget.report import statistics_table as tables
+
+    if result.statistics is None:
+        return []
+    headers, rows, caption = tables.quantile_rows(result)
+    lines = ["", f"{markdown_text(tables.quantile_title(result))}:", ""]
+    lines += _table([header.replace("\n", " ") for header in headers], rows)
+    lines += ["", markdown_text(caption), "", markdown_text(tables.yield_sentence(result))]
+    contributions = tables.contribution_rows(result)
+    if contributions:
+        lines += ["", f"{markdown_text(tables.contribution_title(result))}:", ""]
+        lines += _table(list(tables.CONTRIBUTION_HEADERS),
+                        [[markdown_text(name), *numbers] for name, *numbers in contributions])
+    return lines

@@ -179,11 +179,14 @@ def draw_margin_histogram(axes, margins_db, required_margin_db, *, bins=40):
     """A histogram of margins [dB] (e.g. of statistical draws), the required margin [dB] marked by
     a vertical line. The required margin is a bin edge, so every bar is wholly below it (hatched,
     so it reads as such without colour) or wholly at or above it. ``bins``: a count or the edges."""
-    margins_db = np.asarray(margins_db, dtype=float).ravel()
-    edges = np.histogram_bin_edges(margins_db, bins=bins)
-    if edges[0] < required_margin_db < edges[-1]:
-        edges = np.union1d(edges, [required_margin_db])
-    counts, _ = np.histogram(margins_db, bins=edges)
+    from linkbudget.statistics import margin_histogram
+
+    draw_margin_counts(axes, *margin_histogram(margins_db, required_margin_db, bins=bins), required_margin_db)
+
+
+def draw_margin_counts(axes, edges, counts, required_margin_db):
+    """A histogram drawn from its bin ``edges`` [dB] and ``counts`` (as
+    :func:`linkbudget.statistics.margin_histogram` gives them), bars below the required margin hatched."""
     short = edges[:-1] < required_margin_db
     for below, style in ((False, {"color": "#56B4E9", "label": "draws at or above the required margin"}),
                          (True, {"color": "#E69F00", "hatch": "//", "label": "draws below the required margin"})):
@@ -195,7 +198,7 @@ def draw_margin_histogram(axes, margins_db, required_margin_db, *, bins=40):
                  label=f"required margin ({required_margin_db:.2f} dB)")
     axes.set_xlabel("margin above sensitivity [dB]")
     axes.set_ylabel("number of draws")
-    axes.set_title(f"Margin over {margins_db.size} draws")
+    axes.set_title(f"Margin over {int(np.sum(counts))} draws")
     axes.legend(fontsize="small")
 
 
@@ -213,6 +216,15 @@ def run_panels(result):
     if result.wavelength_m.size > 1:
         panels.append(Panel("margin against wavelength", lambda axes: draw_margin_sweep(axes, [result])))
     return panels
+
+
+def statistics_panels(result):
+    """The margin histogram of a statistical run at its governing wavelength (none without one)."""
+    stats = result.statistics
+    if stats is None or stats.margin_histogram is None:
+        return []
+    return [Panel(f"margin of {stats.trials} trials at {nm(result.wavelength_m[stats.governing_index])}",
+                  lambda axes: draw_margin_counts(axes, *stats.margin_histogram, result.required_margin_db))]
 
 
 def comparison_panels(old, new, labels=("old", "new")):

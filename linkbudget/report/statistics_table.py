@@ -26,20 +26,19 @@ def yield_percent(fraction):
     return f"{100 * float(fraction):.3f} %"
 
 
-def quantile_table(result):
-    """Margin mean, σ, quantiles and the two probabilities per wavelength, with the RSS estimate."""
+def quantile_rows(result):
+    """(headers, rows, caption) of the quantile table as text: margin mean, σ, quantiles and the two
+    probabilities per listed wavelength, with the RSS estimate. A header's two lines are split by a
+    newline (a one-line format joins them with a space)."""
     stats = result.statistics
     probabilities = [p for p in SHOWN_PROBABILITIES if p in stats.margin_quantiles_db]
     smallest = probabilities[0]
-    table = Table(title=f"Statistical budget: {stats.trials} trials, seed {stats.seed} (margin in dB)",
-                  title_justify="left", box=box.SIMPLE_HEAD)
     headers = ["wavelength", "mean", "std", *(f"{100 * p:g} %" for p in probabilities),
                f"RSS\n{100 * smallest:g} %", "P\n(short)"]
     if stats.probability_overload is not None:
         headers.append("P\n(overload)")
-    for header in headers:
-        table.add_column(header, justify="right", no_wrap=True)
     order = stats.margin_quantiles_db[smallest].argsort(kind="stable")[:MAX_LISTED_WAVELENGTHS]
+    rows = []
     for index in sorted(order):
         cells = [nm(result.wavelength_m[index]), fixed(stats.margin_mean_db[index], signed=True),
                  fixed(stats.margin_std_db[index], 3),
@@ -48,25 +47,56 @@ def quantile_table(result):
                  _percent(stats.probability_below_required[index])]
         if stats.probability_overload is not None:
             cells.append(_percent(stats.probability_overload[index]))
-        table.add_row(*cells)
-    table.caption = (f"quantiles of the margin; RSS: nominal margin + z·√(Σ row σ²), rows taken as independent; "
-                     f"short: below the required {fixed(result.required_margin_db)} dB")
+        rows.append(cells)
+    caption = (f"quantiles of the margin; RSS: nominal margin + z·√(Σ row σ²), rows taken as independent; "
+               f"short: below the required {fixed(result.required_margin_db)} dB")
     if result.wavelength_m.size > MAX_LISTED_WAVELENGTHS:
-        table.caption += (f"; the {MAX_LISTED_WAVELENGTHS} tightest of {result.wavelength_m.size} wavelengths "
-                          "(--format json lists all)")
+        caption += (f"; the {MAX_LISTED_WAVELENGTHS} tightest of {result.wavelength_m.size} wavelengths "
+                    "(--format json lists all)")
+    return headers, rows, caption
+
+
+def quantile_title(result):
+    stats = result.statistics
+    return f"Statistical budget: {stats.trials} trials, seed {stats.seed} (margin in dB)"
+
+
+def quantile_table(result):
+    """:func:`quantile_rows` as a terminal table."""
+    headers, rows, caption = quantile_rows(result)
+    table = Table(title=quantile_title(result), title_justify="left", box=box.SIMPLE_HEAD)
+    for header in headers:
+        table.add_column(header, justify="right", no_wrap=True)
+    for cells in rows:
+        table.add_row(*cells)
+    table.caption = caption
     return table
 
 
-def contribution_table(result):
-    """The rows with the largest share of the margin variance at the governing wavelength."""
+#: Headers of the contribution table.
+CONTRIBUTION_HEADERS = ("segment", "std dB", "share of variance")
+
+
+def contribution_rows(result):
+    """(segment name as written, its σ, its share) of the rows with the largest share of the margin
+    variance at the governing wavelength; the name is user text for the caller to escape."""
     stats = result.statistics
     index = stats.governing_index
-    table = Table(title=f"What spreads the margin at {nm(result.wavelength_m[index])}", title_justify="left",
-                  box=box.SIMPLE_HEAD)
-    for header, justify in (("segment", "left"), ("std dB", "right"), ("share of variance", "right")):
+    return [(item.name, fixed(item.std_db[index], 3), _percent(item.share[index]))
+            for item in stats.contributions[:MAX_LISTED_CONTRIBUTIONS]]
+
+
+def contribution_title(result):
+    return f"What spreads the margin at {nm(result.wavelength_m[result.statistics.governing_index])}"
+
+
+def contribution_table(result):
+    """:func:`contribution_rows` as a terminal table."""
+    table = Table(title=contribution_title(result), title_justify="left", box=box.SIMPLE_HEAD)
+    for header, justify in zip(CONTRIBUTION_HEADERS, ("left", "right", "right"), strict=True):
         table.add_column(header, justify=justify)
-    for item in stats.contributions[:MAX_LISTED_CONTRIBUTIONS]:
-        table.add_row(Text(escaped(item.name)), fixed(item.std_db[index], 3), _percent(item.share[index]))
+    for name, std_text, share_text in contribution_rows(result):
+        table.add_row(Text(escaped(name)), std_text, share_text)
     return table
 
 
