@@ -87,6 +87,33 @@ def _margin_override(text):
     return margin_db
 
 
+def _hazard_level_option(text):
+    if text is None:
+        return None
+    from linkbudget.gates import hazard_level_option
+
+    try:
+        return hazard_level_option(text)
+    except ValueError as error:
+        _fail_input(f"--max-hazard-level: {error}")
+
+
+def _ratio_option(option, text, *, lower=None, upper=None):
+    """A dB option's value, within ``lower``..``upper`` [dB], or exit 2 with a message."""
+    if text is None:
+        return None
+    from linkbudget.units import UnitError, parse_quantity
+
+    try:
+        value_db = parse_quantity(text, "ratio")
+    except UnitError as error:
+        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
+    if lower is not None and value_db < lower or upper is not None and value_db > upper:
+        bound = f">= {lower:g} dB" if lower is not None else f"<= {upper:g} dB"
+        _fail_input(f"{option}: the value must be {bound}, got {text!r}")
+    return value_db
+
+
 def _version(value: bool):
     if value:
         typer.echo(f"linkbudget {__version__}")
@@ -176,17 +203,33 @@ def check(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
+    max_hazard_level: Annotated[str | None, typer.Option(
+        "--max-hazard-level", metavar="LEVEL",
+        help="Fail a link with a reachable point above this hazard level (1, 1M, 3R, 3B), by its estimate.")
+    ] = None,
+    max_back_reflection: Annotated[str | None, typer.Option(
+        "--max-back-reflection", metavar="DB",
+        help="Fail a link whose worst-case back reflection toward the source is above this, e.g. '-30dB' "
+             "(overrides each source's max_back_reflection, which is checked without it).")
+    ] = None,
+    max_pdl: Annotated[str | None, typer.Option(
+        "--max-pdl", metavar="DB", help="Fail a link whose polarization-dependent loss is above this, e.g. '0.5dB'.")
+    ] = None,
     allow_path: AllowPath = None,
 ):
-    """The CI gate: one line per link, exit 0 only if every link closes.
+    """The CI gate: one line per link, exit 0 only if every link closes and passes the gates asked for.
 
-    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    Exit status 0 every link passes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
     from linkbudget.config import ConfigError, load_link
     from linkbudget.engine import evaluate
+    from linkbudget.gates import gate_failures
     from linkbudget.report.summary import check_error_line, check_line, check_summary
 
     required = _margin_override(min_margin)
+    gates = {"max_hazard_level": _hazard_level_option(max_hazard_level),
+             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, upper=0.0),
+             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, lower=0.0)}
     closes = fails = broken = 0
     for path in links:
         try:
@@ -196,9 +239,11 @@ def check(
             typer.echo(check_error_line(path), err=False)
             typer.echo(str(error), err=True)
             continue
-        typer.echo(check_line(result, path))
-        closes += result.closes
-        fails += not result.closes
+        failures = gate_failures(result, **gates)
+        typer.echo(check_line(result, path, failures))
+        passes = result.closes and not failures
+        closes += passes
+        fails += not passes
     typer.echo(check_summary(len(links), closes, fails, broken))
     raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
 

@@ -12,6 +12,7 @@ from pathlib import Path
 from pydantic import BaseModel, ValidationError
 
 from linkbudget.config.fields import InputProblem
+from linkbudget.config.reachable import reachable_problems
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
 from linkbudget.reader import LinkFiles, WorkingTreeReader
@@ -202,6 +203,8 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
     if not problems:
         problems = [positions.problem(("chain", index, *problem.key_path), str(problem), problem.hint)
                     for index, problem in chain_problems(segments, wavelength_m)]
+        problems += [positions.problem(path, str(problem), problem.hint)
+                     for path, problem in reachable_problems(spec.reachable, segments)]
     if problems:
         raise ConfigError(problems)
     return Link(spec, tuple(segments), file, files.read_paths, positions)

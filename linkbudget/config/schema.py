@@ -7,6 +7,7 @@ from pydantic import Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Strict, quantity, spread
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.reachable import Reachable
 from linkbudget.units import WAVELENGTH_EXAMPLE
 
 #: Most wavelengths a band may expand to.
@@ -52,10 +53,13 @@ class Band(Strict):
 
 class Source(Strict):
     """The transmitter: launch ``power`` into the first segment (a spread is allowed), and the
-    optional ``spectral_width`` (FWHM) that sets its coherence length."""
+    optional ``spectral_width`` (FWHM) that sets its coherence length, and the optional
+    ``max_back_reflection``: the most light returning toward it that it tolerates, relative to its
+    launch power (e.g. ``-30 dB``)."""
 
     power: spread("power", bounds=RANGES["source power"])
     spectral_width: quantity("length", bounds=RANGES["spectral width"]) | None = None
+    max_back_reflection: quantity("ratio", bounds=RANGES["back-reflection tolerance"]) | None = None
     name: str | None = None
 
 
@@ -86,6 +90,7 @@ class LinkSpec(Strict):
     source: Source
     receiver: Receiver
     chain: list[Any] = Field(min_length=1)
+    reachable: Reachable | None = None
 
     @model_validator(mode="after")
     def _one_axis(self):

@@ -11,6 +11,7 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
+from linkbudget.report.review_terminal import review_parts
 from linkbudget.report.summary import (
     db_text,
     margin_sentence,
@@ -94,4 +95,4 @@ def render(result):
         parts.append(Text(f"(the table shows the wavelength with the least worst-case margin; "
                           f"the link carries {result.wavelength_m.size})", style="dim"))
     notes = [Text(f"note: {escaped(note)}", style="yellow") for note in result.notes]
-    return Group(*parts, margin_table(result), summary, *notes, cautions)
+    return Group(*parts, margin_table(result), summary, *notes, *review_parts(result), cautions)

@@ -16,7 +16,7 @@ from linkbudget.config.fields import (
     DielectricIndex,
     InputProblem,
     integer,
-    quantity,
+    spread,
 )
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics.decibel import transmittance_from_loss_db
@@ -142,7 +142,7 @@ class _Joint(SegmentSpec):
         """The datasheet loss (with the geometric estimate beside it, when the geometry is given
         too), else the loss from the geometry."""
         geometric = self.geometric_losses_db(wavelength_m, cases, around) if self.geometric else None
-        typed = {"reflectance": self.reflectance(wavelength_m)}
+        typed = {"reflectance": self.reflectance(wavelength_m), "reflectance_high": self.reflectance_high(wavelength_m)}
         if self.loss is None:
             return segment_row(self, geometric, **typed)
         datasheet = {case.name: self.loss_db(wavelength_m, case) for case in cases}
@@ -150,6 +150,10 @@ class _Joint(SegmentSpec):
 
     def reflectance(self, wavelength_m):
         """polarization -> the power fraction the joint sends back toward the source, or ``None``."""
+        return None
+
+    def reflectance_high(self, wavelength_m):
+        """polarization -> the highest such fraction its spread allows, where it differs, or ``None``."""
         return None
 
     def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
@@ -165,15 +169,26 @@ class Connector(_Joint):
     """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
 
     kind: Literal["connector"]
-    return_loss: quantity("ratio", bounds=RANGES["return loss"]) | None = None
+    return_loss: spread("ratio", bounds=RANGES["return loss"]) | None = None
 
     def reflectance(self, wavelength_m):
-        """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
-        (a datasheet states one value)."""
+        """The datasheet return loss RL (its typical value) as the reflectance R = 10^(−RL/10),
+        the same for s and p (a datasheet states one value)."""
         if self.return_loss is None:
             return None
-        reflected = flat_over_wavelength(transmittance_from_loss_db(self.return_loss), wavelength_m)
-        return {pol: reflected for pol in POLARIZATIONS}
+        return _reflectance_of(self.return_loss.typ_value, wavelength_m)
+
+    def reflectance_high(self, wavelength_m):
+        """The reflectance of the return loss's low end (its bad end), where it is a spread."""
+        if self.return_loss is None or self.return_loss.low == self.return_loss.typ_value:
+            return None
+        return _reflectance_of(self.return_loss.low, wavelength_m)
+
+
+def _reflectance_of(return_loss_db, wavelength_m):
+    """polarization -> R = 10^(−RL/10) over the wavelength axis."""
+    reflected = flat_over_wavelength(transmittance_from_loss_db(return_loss_db), wavelength_m)
+    return {pol: reflected for pol in POLARIZATIONS}
 
 
 class Splice(_Joint):
