@@ -62,10 +62,16 @@ CLASS_3B_AEL_W = 0.5
 CLASS_3R_FACTOR = 5.0
 
 
+def _nm(wavelength_m):
+    """λ in nm, to 1e-6 nm (the resolution wavelengths are written in), so a band edge written
+    as ``1400 nm`` is 1400 exactly, not 1400.0000000000002."""
+    return np.round(np.asarray(wavelength_m, dtype=float) * 1e9, 6)
+
+
 def _in_band(wavelength_m):
-    wavelength_m = np.asarray(wavelength_m, dtype=float)
-    low, high = ASSESSED_BAND_M
-    return wavelength_m, (wavelength_m >= low) & (wavelength_m <= high)
+    wavelength_nm = _nm(wavelength_m)
+    low, high = (edge * 1e9 for edge in ASSESSED_BAND_M)
+    return wavelength_nm, (wavelength_nm >= low) & (wavelength_nm <= high)
 
 
 def correction_factor_c4(wavelength_m):
@@ -86,7 +92,7 @@ def correction_factor_c4(wavelength_m):
     ----------
     .. [1] Directive 2006/25/EC, Annex II, Table 2.2 (C_A); IEC 60825-1:2007, Table 9.
     """
-    wavelength_nm = np.asarray(wavelength_m, dtype=float) * 1e9
+    wavelength_nm = _nm(wavelength_m)
     factor = np.where(wavelength_nm < 1050, 10.0 ** (0.002 * (wavelength_nm - 700)), 5.0)
     return np.where((wavelength_nm >= 700) & (wavelength_nm <= 1400), factor, np.nan)
 
@@ -104,7 +110,7 @@ def correction_factor_c7(wavelength_m):
     ----------
     .. [1] Directive 2006/25/EC, Annex II, Table 2.2 (C_C); IEC 60825-1:2007, Table 9.
     """
-    wavelength_nm = np.asarray(wavelength_m, dtype=float) * 1e9
+    wavelength_nm = _nm(wavelength_m)
     factor = np.where(wavelength_nm < 1150, 1.0,
                       np.where(wavelength_nm < 1200, 10.0 ** (0.018 * (wavelength_nm - 1150)), 8.0))
     return np.where((wavelength_nm >= 700) & (wavelength_nm <= 1400), factor, np.nan)
@@ -125,10 +131,9 @@ def class1_ael_w(wavelength_m):
     IEC 60825-1:2007 Table 4 (from memory). Above 1400 nm the limit of 1.0e-2 W is where the
     short-exposure energy limit 1.8e-2·t^0.75 J reaches at t = 10 s (0.101 J in 10 s).
     """
-    wavelength_m, inside = _in_band(wavelength_m)
-    with np.errstate(invalid="ignore"):
-        retinal = 3.9e-4 * correction_factor_c4(wavelength_m) * correction_factor_c7(wavelength_m)
-    limit = np.where(wavelength_m <= RETINAL_BAND_END_M, retinal, 1.0e-2)
+    wavelength_nm, inside = _in_band(wavelength_m)
+    retinal = 3.9e-4 * correction_factor_c4(wavelength_m) * correction_factor_c7(wavelength_m)
+    limit = np.where(wavelength_nm <= RETINAL_BAND_END_M * 1e9, retinal, 1.0e-2)
     return np.where(inside, limit, np.nan)
 
 
@@ -167,8 +172,7 @@ UNAIDED_EYE = MEASUREMENT_CONDITIONS[2]
 
 def aperture_diameter_m(condition, wavelength_m):
     """The limiting aperture [m] of a :class:`MeasurementCondition` at each wavelength."""
-    wavelength_m = np.asarray(wavelength_m, dtype=float)
-    return np.where(wavelength_m <= RETINAL_BAND_END_M, condition.aperture_diameter_m,
+    return np.where(_nm(wavelength_m) <= RETINAL_BAND_END_M * 1e9, condition.aperture_diameter_m,
                     condition.aperture_diameter_above_1400_m)
 
 
