@@ -26,8 +26,8 @@ What the limits assume (Ed. 2, from memory):
   (:data:`MEASUREMENT_CONDITIONS`): condition 1, a 50 mm aperture at 2000 mm (a collimated beam
   seen through binoculars or a telescope); condition 2, a 7 mm aperture at 14 mm (a divergent
   beam seen through a magnifier); condition 3, a 7 mm aperture at 100 mm (the unaided eye), whose
-  aperture above 1400 nm is the limiting aperture there, 3.5 mm (for exposures over 10 s). Class 1 holds under all three, Class 1M under
-  condition 3 only (while conditions 1 and 2 stay within Class 3B).
+  aperture above 1400 nm is the limiting aperture there, 3.5 mm (for exposures over 10 s). Class 1
+  holds under all three, Class 1M under condition 3 only (while conditions 1 and 2 stay within Class 3B).
 
 Edition 3 (IEC 60825-1:2014) raised C7 above 1250 nm (from memory: C7 = 8 + 10^(0.04(λ − 1250))),
 so its limits there are higher: those of Ed. 2 used here are the stricter of the two.

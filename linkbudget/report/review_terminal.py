@@ -115,4 +115,5 @@ def review_parts(result):
     """Every section of the review, in order, for the terminal report."""
     if result.review is None:
         return []
-    return [safety_table(result), _limits_line(), *safety_lines(result), *back_reflection_lines(result), *polarization_lines(result)]
+    return [safety_table(result), _limits_line(), *safety_lines(result), *back_reflection_lines(result),
+            *polarization_lines(result)]
