@@ -230,7 +230,7 @@ def check(
     gates = {"max_hazard_level": _hazard_level_option(max_hazard_level),
              "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, upper=0.0),
              "max_pdl_db": _ratio_option("--max-pdl", max_pdl, lower=0.0)}
-    closes = fails = broken = 0
+    closes = fails = broken = gated = 0
     for path in links:
         try:
             result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
@@ -241,11 +241,11 @@ def check(
             continue
         failures = gate_failures(result, **gates)
         typer.echo(check_line(result, path, failures))
-        passes = result.closes and not failures
-        closes += passes
-        fails += not passes
-    typer.echo(check_summary(len(links), closes, fails, broken))
-    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails else EXIT_OK)
+        closes += result.closes
+        fails += not result.closes
+        gated += bool(failures)
+    typer.echo(check_summary(len(links), closes, fails, broken, gated))
+    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails or gated else EXIT_OK)
 
 
 @app.command(cls=_Command)

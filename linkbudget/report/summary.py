@@ -133,6 +133,7 @@ def check_error_line(path):
     return f"ERROR  {escaped(path)}: input error"
 
 
-def check_summary(count, closes, fails, broken):
-    """The CI gate's last line."""
-    return f"{count} link(s): {closes} close, {fails} do not close, {broken} with input errors"
+def check_summary(count, closes, fails, broken, gated=0):
+    """The CI gate's last line; ``gated`` links failed a gate of the review (said when any did)."""
+    gates = f", {gated} fail a safety, back-reflection or PDL gate" if gated else ""
+    return f"{count} link(s): {closes} close, {fails} do not close{gates}, {broken} with input errors"
