@@ -74,17 +74,7 @@ def _evaluated(path, allow_paths, required_margin_db):
 
 
 def _margin_override(text):
-    if text is None:
-        return None
-    from linkbudget.units import UnitError, parse_quantity
-
-    try:
-        margin_db = parse_quantity(text, "ratio")
-    except UnitError as error:
-        _fail_input(f"--min-margin: {error}{format_hint(error.hint)}")
-    if margin_db < 0:
-        _fail_input(f"--min-margin: a required margin is >= 0 dB, got {text!r}")
-    return margin_db
+    return _ratio_option("--min-margin", text, lower=0.0, what="a required margin")
 
 
 def _hazard_level_option(text):
@@ -98,8 +88,9 @@ def _hazard_level_option(text):
         _fail_input(f"--max-hazard-level: {error}")
 
 
-def _ratio_option(option, text, *, lower=None, upper=None):
-    """A dB option's value, within ``lower``..``upper`` [dB], or exit 2 with a message."""
+def _ratio_option(option, text, *, lower=None, upper=None, what="the value"):
+    """A dB option's value (``what`` it is, for the message), at least ``lower`` or at most
+    ``upper`` [dB], or exit 2 with a message."""
     if text is None:
         return None
     from linkbudget.units import UnitError, parse_quantity
@@ -110,7 +101,7 @@ def _ratio_option(option, text, *, lower=None, upper=None):
         _fail_input(f"{option}: {error}{format_hint(error.hint)}")
     if lower is not None and value_db < lower or upper is not None and value_db > upper:
         bound = f">= {lower:g} dB" if lower is not None else f"<= {upper:g} dB"
-        _fail_input(f"{option}: the value must be {bound}, got {text!r}")
+        _fail_input(f"{option}: {what} is {bound}, got {text!r}")
     return value_db
 
 

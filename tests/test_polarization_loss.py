@@ -23,8 +23,8 @@ WAVELENGTH_NM = 1610.0
 GOLD = complex(0.56, 11.21)
 
 
-def evaluated(chain):
-    text = f"""\
+def link_text(chain):
+    return f"""\
 title: PDL test
 wavelength: {WAVELENGTH_NM:g} nm
 source:
@@ -33,7 +33,10 @@ receiver:
   sensitivity: -40 dBm
 chain:
 {chain}"""
-    return linkbudget.evaluate(linkbudget.load(text))
+
+
+def evaluated(chain):
+    return linkbudget.evaluate(linkbudget.load(link_text(chain)))
 
 
 def db(transmittance):
@@ -84,15 +87,7 @@ def test_polarization_loss_normal_incidence_has_none():
 
 
 def test_polarization_loss_row_note_json_and_gate(write_link):
-    path = write_link(f"""\
-title: PDL test
-wavelength: {WAVELENGTH_NM:g} nm
-source:
-  power: 0 dBm
-receiver:
-  sensitivity: -40 dBm
-chain:
-{PLATE}""")
+    path = write_link(link_text(PLATE))
     terminal = run_cli("run", path).stdout
     assert "PDL 0." in terminal and "Polarization-dependent loss of the link" in terminal
     data = json.loads(run_cli("run", path, "--format", "json").stdout)

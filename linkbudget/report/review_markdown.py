@@ -3,14 +3,7 @@ and polarization-dependent loss, for a pull-request comment (estimates; the caut
 
 import numpy as np
 
-from linkbudget.report.review_text import (
-    LIMITS_SENTENCE,
-    assessed_at,
-    back_reflection_sentences,
-    milliwatt_text,
-    polarization_sentence,
-    safety_sentences,
-)
+from linkbudget.report import review_text as words
 from linkbudget.report.summary import db_text
 
 
@@ -18,8 +11,8 @@ def review_lines(result, table, shown):
     """The section's Markdown lines; ``table`` builds a Markdown table, ``shown`` escapes user text."""
     if result.review is None:
         return []
-    rows = [[shown(item.point.name), item.point.what, assessed_at(result, item), milliwatt_text(item.power_w),
-             milliwatt_text(item.class1_limit_w),
+    rows = [[shown(item.point.name), item.point.what, words.assessed_at(result, item),
+             words.milliwatt_text(item.power_w), words.milliwatt_text(item.class1_limit_w),
              db_text(item.margin_db, True) if np.isfinite(item.margin_db) else "n/a",
              "known" if item.beam_known else "unknown",
              f"**{item.hazard_level or 'n/a'}**" if item.above_level_1 else item.hazard_level]
@@ -27,8 +20,8 @@ def review_lines(result, table, shown):
     lines = ["", "Eye safety at reachable points (estimates):", ""]
     lines += table(["point", "what", "wavelength", "highest power mW", "Class 1 limit mW", "margin dB", "beam",
                     "hazard level"], rows, text_columns=3)
-    lines += ["", LIMITS_SENTENCE, ""]
+    lines += ["", words.LIMITS_SENTENCE, ""]
     lines += [f"- {'**' + sentence + '**' if alarm else sentence}" for sentence, alarm in
-              (*safety_sentences(result, shown), *back_reflection_sentences(result, shown))]
-    lines += [f"- {polarization_sentence(result, shown)}"]
+              (*words.safety_sentences(result, shown), *words.back_reflection_sentences(result, shown))]
+    lines += [f"- {words.polarization_sentence(result, shown)}"]
     return lines
