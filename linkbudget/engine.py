@@ -568,4 +568,6 @@ def evaluate(link, *, required_margin_db=None):
         raise ConfigError([problem])
     from linkbudget.review import review_link
 
-    return replace(result, review=review_link(link, result))
+    reviewed = replace(result, review=review_link(link, result))
+    reviewed.__dict__.update(result.__dict__ | reviewed.__dict__)  # keep the cached arrays the review computed
+    return reviewed

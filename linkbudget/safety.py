@@ -65,10 +65,9 @@ class ReachablePoint:
     excluded: str | None = None
 
 
-def _segment_row_index(rows, name):
-    """The index of the segment's own row (a coating's is its coating row)."""
-    return next(index for index, row in enumerate(rows)
-                if row.kind in (SEGMENT_ROW, COATING_ROW) and row.origin == (name,))
+def _segment_row_indices(rows):
+    """segment name -> the index of its own row (a coating's is its coating row)."""
+    return {row.origin[0]: index for index, row in enumerate(rows) if row.kind in (SEGMENT_ROW, COATING_ROW)}
 
 
 def _largest_radius_m(mode, wavelength_m):
@@ -96,8 +95,9 @@ def reachable_points(link, rows, wavelength_m):
     added = {}
     for point in ([] if block is None else block.add):
         added.setdefault(point.after, []).append(point)
+    row_index = _segment_row_indices(rows)
     for position, segment in enumerate(segments):
-        index = _segment_row_index(rows, segment.name)
+        index = row_index[segment.name]
         before = modes[position - 1] if position else None
         if segment.kind in POINT_KINDS:
             mode = segment.launched_mode(wavelength_m, before) if segment.kind == "gap" else before
@@ -166,60 +166,64 @@ class Assessment:
         return self.hazard_level != "1"
 
 
-def _ratio_sums(power_w, fractions, limit_w, conditions):
-    """Σ_i P_i·f_i/AEL_i for each condition, the largest (the most restrictive condition)."""
-    return max(float(np.sum(power_w * fractions[condition.name] / limit_w)) for condition in conditions)
+def _ratios(power_w, fractions, limit_w, conditions, together):
+    """Σ P_i·f_i/AEL_i under the most restrictive of ``conditions``: one value for the channels
+    (``together``), else one per wavelength."""
+    per_condition = np.array([power_w * fractions[condition.name] / limit_w for condition in conditions])
+    if together:
+        per_condition = per_condition.sum(axis=1, keepdims=True)
+    return per_condition.max(axis=0)
 
 
-def assess_group(point, power_w, wavelength_m, fractions, index):
-    """The :class:`Assessment` of ``point`` for the wavelengths ``index`` acting together."""
-    power_w, wavelength_m = power_w[index], wavelength_m[index]
-    fractions = {name: values[index] for name, values in fractions.items()}
-    total_w = float(np.sum(power_w))
-    if not np.all(np.isfinite(laser_safety.class1_ael_w(wavelength_m))):
-        return Assessment(point, total_w, float("nan"), float("nan"), None, tuple(index.tolist()),
-                          point.waist_radius_m is not None)
-    conditions = laser_safety.MEASUREMENT_CONDITIONS
-    aided = conditions[:2]
-    class1 = _ratio_sums(power_w, fractions, laser_safety.class1_ael_w(wavelength_m), conditions)
-    level = laser_safety.hazard_level(
-        class1,
-        _ratio_sums(power_w, fractions, laser_safety.class1_ael_w(wavelength_m), (laser_safety.UNAIDED_EYE,)),
-        _ratio_sums(power_w, fractions, laser_safety.class3b_ael_w(wavelength_m), aided),
-        _ratio_sums(power_w, fractions, laser_safety.class3r_ael_w(wavelength_m), conditions),
-        _ratio_sums(power_w, fractions, laser_safety.class3b_ael_w(wavelength_m), conditions))
-    with np.errstate(divide="ignore"):
-        limit_w = total_w / class1 if class1 > 0 else float("inf")
-        margin_db = float(-10.0 * np.log10(class1)) if class1 > 0 else float("inf")
-    return Assessment(point, total_w, limit_w, margin_db, level, tuple(index.tolist()),
-                      point.waist_radius_m is not None)
+@dataclass(frozen=True)
+class Limits:
+    """The limits [W] of the classes over a link's wavelength axis (computed once per link)."""
+
+    class1_w: np.ndarray
+    class3r_w: np.ndarray
+    class3b_w: np.ndarray
+
+    @classmethod
+    def over(cls, wavelength_m):
+        return cls(laser_safety.class1_ael_w(wavelength_m), laser_safety.class3r_ael_w(wavelength_m),
+                   laser_safety.class3b_ael_w(wavelength_m))
 
 
-def wavelength_groups(spec, wavelength_m):
-    """The sets of wavelength indices whose powers add: all the channels at once; each point of
-    a sweep (or the one wavelength) alone."""
-    if spec.channels is not None:
-        return [np.arange(wavelength_m.size)]
-    return [np.array([index]) for index in range(wavelength_m.size)]
-
-
-def _severity(assessment):
-    level = assessment.hazard_level
-    rank = len(laser_safety.HAZARD_LEVELS) if level is None else laser_safety.HAZARD_LEVELS.index(level)
-    return rank, -assessment.margin_db if np.isfinite(assessment.margin_db) else 0.0
-
-
-def assess_point(result, spec, point):
-    """The worst :class:`Assessment` of ``point`` over the link's wavelength groups."""
+def assess_point(result, spec, point, limits=None):
+    """The :class:`Assessment` of ``point``: the channels of a ``channels`` link together, else
+    the worst wavelength (the highest hazard level, then the least margin). ``limits``: the
+    :class:`Limits` of the link's axis, if already computed."""
     wavelength_m = result.wavelength_m
+    limits = Limits.over(wavelength_m) if limits is None else limits
     power_w = point_power_w(result, point)
     fractions = accessible_fractions(point.waist_radius_m, wavelength_m)
-    return max((assess_group(point, power_w, wavelength_m, fractions, index)
-                for index in wavelength_groups(spec, wavelength_m)), key=_severity)
+    together = spec.channels is not None
+    conditions, aided = laser_safety.MEASUREMENT_CONDITIONS, laser_safety.MEASUREMENT_CONDITIONS[:2]
+    class1 = _ratios(power_w, fractions, limits.class1_w, conditions, together)
+    levels = laser_safety.hazard_level(
+        class1, _ratios(power_w, fractions, limits.class1_w, (laser_safety.UNAIDED_EYE,), together),
+        _ratios(power_w, fractions, limits.class3b_w, aided, together),
+        _ratios(power_w, fractions, limits.class3r_w, conditions, together),
+        _ratios(power_w, fractions, limits.class3b_w, conditions, together))
+    totals_w = np.array([power_w.sum()]) if together else power_w
+    levels = np.atleast_1d(levels)
+    rank = np.full(levels.shape, len(laser_safety.HAZARD_LEVELS))  # not assessed (NaN) ranks highest
+    for order, name in enumerate(laser_safety.HAZARD_LEVELS):
+        rank[(levels == name) & ~np.isnan(class1)] = order
+    worst = int(np.lexsort((np.nan_to_num(class1, nan=np.inf), rank))[-1])
+    index = tuple(range(wavelength_m.size)) if together else (worst,)
+    ratio, total_w = float(class1[worst]), float(totals_w[worst])
+    assessed = bool(np.isfinite(ratio))
+    with np.errstate(divide="ignore"):
+        limit_w = total_w / ratio if ratio > 0 else float("inf") if assessed else float("nan")
+        margin_db = float(-10.0 * np.log10(ratio)) if assessed else float("nan")
+    return Assessment(point, total_w, limit_w, margin_db, str(levels[worst]) if assessed else None,
+                      index, point.waist_radius_m is not None)
 
 
 def assess_link(link, result):
     """(assessments of the reachable points, excluded points), each in chain order."""
     points = reachable_points(link, result.rows, result.wavelength_m)
-    return (tuple(assess_point(result, link.spec, point) for point in points if point.excluded is None),
+    limits = Limits.over(result.wavelength_m)
+    return (tuple(assess_point(result, link.spec, point, limits) for point in points if point.excluded is None),
             tuple(point for point in points if point.excluded is not None))

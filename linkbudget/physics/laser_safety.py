@@ -201,14 +201,15 @@ def hazard_level(class1_ratio_all, class1_ratio_unaided, class3b_ratio_aided, cl
     -----
     Level 1: every condition within Class 1. Level 1M: condition 3 within Class 1, conditions
     1 and 2 within Class 3B. Else 3R, 3B within their limits, else 4 (IEC 60825-1:2007 clause 8,
-    from memory). A ratio ≤ 1 is within the limit.
+    from memory). A ratio ≤ 1 is within the limit. The ratios may be arrays (one level each).
+
+    Returns
+    -------
+    numpy.ndarray of str
+        The levels, of the ratios' shape (a 0-d array for scalars).
     """
-    if class1_ratio_all <= 1:
-        return "1"
-    if class1_ratio_unaided <= 1 and class3b_ratio_aided <= 1:
-        return "1M"
-    if class3r_ratio_all <= 1:
-        return "3R"
-    if class3b_ratio_all <= 1:
-        return "3B"
-    return "4"
+    ratios = [np.asarray(value, dtype=float) for value in (class1_ratio_all, class1_ratio_unaided,
+                                                             class3b_ratio_aided, class3r_ratio_all, class3b_ratio_all)]
+    all1, unaided1, aided3b, all3r, all3b = ratios
+    return np.select([all1 <= 1, (unaided1 <= 1) & (aided3b <= 1), all3r <= 1, all3b <= 1], ["1", "1M", "3R", "3B"],
+                     default="4")

@@ -166,7 +166,10 @@ def _review_numbers(values, *, wavelength=False, fraction=False):
 
 
 def _review_entries(result):
-    """The ``safety``, ``back_reflection`` and ``polarization_dependent_loss`` objects."""
+    """The ``safety``, ``back_reflection`` and ``polarization_dependent_loss`` objects (none for a
+    result built without its review)."""
+    if result.review is None:
+        return {}
     from linkbudget.report.review_json import back_reflection_entry, polarization_loss_entry, safety_entry
 
     def number(value):

@@ -58,8 +58,6 @@ def back_reflection_entry(result, numbers, number):
     with np.errstate(divide="ignore"):
         reflections = [{
             "row": item.row_id,
-            "reflectance": {figure: {pol: numbers(values[pol], fraction=True) for pol in POLARIZATIONS}
-                            for figure, values in item.reflectance.items()},
             "contribution_db": {figure: numbers(10.0 * np.log10(item.total(figure))) for figure in item.contribution},
         } for item in budget.reflections]
     return {
