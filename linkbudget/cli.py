@@ -88,7 +88,7 @@ def _hazard_level_option(text):
         _fail_input(f"--max-hazard-level: {error}")
 
 
-def _ratio_option(option, text, *, lower=None, upper=None, what="the value"):
+def _ratio_option(option, text, *, what, lower=None, upper=None):
     """A dB option's value (``what`` it is, for the message), at least ``lower`` or at most
     ``upper`` [dB], or exit 2 with a message."""
     if text is None:
@@ -219,8 +219,9 @@ def check(
 
     required = _margin_override(min_margin)
     gates = {"max_hazard_level": _hazard_level_option(max_hazard_level),
-             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, upper=0.0),
-             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, lower=0.0)}
+             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, upper=0.0,
+                                                     what="a back reflection, a fraction of the launch,"),
+             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, lower=0.0, what="a polarization-dependent loss")}
     closes = fails = broken = gated = 0
     for path in links:
         try:
