@@ -15,7 +15,7 @@ import math
 import pytest
 
 import linkbudget
-from tests.conftest import run_cli
+from tests.conftest import CONFIGS, run_cli
 
 
 def link(chain, *, wavelength="wavelength: 1550 nm", power="{min: 10 dBm, typ: 12 dBm, max: 13 dBm}", extra=""):
@@ -166,3 +166,21 @@ def test_check_max_hazard_level_gate(write_link):
     assert gated.exit_code == 1 and "above hazard level 1: source output 3R, hot panel 3R" in gated.stdout
     assert run_cli("check", hot, "--max-hazard-level", "3R").exit_code == 0
     assert run_cli("check", hot, "--max-hazard-level", "2X").exit_code == 2
+
+
+def test_assess_link_visible_wavelength_not_assessed_and_fails_every_gate(write_link):
+    # 650 nm lies outside the 700–4000 nm the limits here cover (Classes 2 and 2M are not modelled)
+    found = points(link(HOT_THEN_ATTENUATED, wavelength="wavelength: 650 nm"))
+    assert all(item.hazard_level is None and item.above_level_1 for item in found.values())
+    path = write_link(link(HOT_THEN_ATTENUATED, wavelength="wavelength: 650 nm"))
+    assert "NOT ASSESSED at 650 nm" in run_cli("run", path).stdout
+    assert run_cli("check", path, "--max-hazard-level", "3B").exit_code == 1
+
+
+@pytest.mark.parametrize("config", CONFIGS, ids=[path.name for path in CONFIGS])
+def test_every_result_holds_the_review_objects(config):
+    data = json.loads(run_cli("run", config, "--format", "json").stdout)
+    assert list(data)[-4:] == ["safety", "back_reflection", "polarization_dependent_loss", "cautions"]
+    names = [point["name"] for point in data["safety"]["points"]]
+    assert names[0] == "source output" or "source output" in [p["name"] for p in data["safety"]["excluded"]]
+    assert names[-1] == "receiver input"
