@@ -48,6 +48,7 @@ class Format(str, Enum):
     json = "json"
     markdown = "markdown"
     csv = "csv"
+    html = "html"
 
 
 #: The option of every command that loads links: a folder outside the project a link may read from.
@@ -73,8 +74,21 @@ def _evaluated(path, allow_paths, required_margin_db):
         _fail_input(str(error))
 
 
-def _margin_override(text):
-    return _ratio_option("--min-margin", text, lower=0.0, what="a required margin")
+def _ratio_option(option, text, *, what="a margin", lower=0.0, upper=None):
+    """The dB value of an option (``None`` when not given; ``what`` it is, for the message): at
+    least ``lower``, or at most ``upper`` when ``lower`` is ``None``."""
+    if text is None:
+        return None
+    from linkbudget.units import UnitError, parse_quantity
+
+    try:
+        value_db = parse_quantity(text, "ratio")
+    except UnitError as error:
+        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
+    if lower is not None and not value_db >= lower or upper is not None and not value_db <= upper:
+        bound = f">= {lower:g} dB" if lower is not None else f"<= {upper:g} dB"
+        _fail_input(f"{option}: {what} is {bound}, got {text!r}")
+    return value_db
 
 
 def _hazard_level_option(text):
@@ -88,21 +102,8 @@ def _hazard_level_option(text):
         _fail_input(f"--max-hazard-level: {error}")
 
 
-def _ratio_option(option, text, *, what, lower=None, upper=None):
-    """A dB option's value (``what`` it is, for the message), at least ``lower`` or at most
-    ``upper`` [dB], or exit 2 with a message."""
-    if text is None:
-        return None
-    from linkbudget.units import UnitError, parse_quantity
-
-    try:
-        value_db = parse_quantity(text, "ratio")
-    except UnitError as error:
-        _fail_input(f"{option}: {error}{format_hint(error.hint)}")
-    if lower is not None and value_db < lower or upper is not None and value_db > upper:
-        bound = f">= {lower:g} dB" if lower is not None else f"<= {upper:g} dB"
-        _fail_input(f"{option}: {what} is {bound}, got {text!r}")
-    return value_db
+def _margin_override(text):
+    return _ratio_option("--min-margin", text)
 
 
 def _version(value: bool):
@@ -119,9 +120,14 @@ def _root(
     """Optical link budgets from physics and datasheets, kept as YAML."""
 
 
-def _report_text(result, output_format):
+def _report_text(result, output_format, link=None):
     """The report in one of the file formats (terminal output as plain text): a string, or for
-    JSON an iterator of its pieces, so that a large sweep is streamed, never one string."""
+    JSON an iterator of its pieces, so that a large sweep is streamed, never one string. The HTML
+    page shows the SHA-256 of the ``link`` file."""
+    if output_format is Format.html:
+        from linkbudget.report.html import file_sha256, render
+
+        return render(result, input_sha256=file_sha256(link))
     if output_format is Format.json:
         from linkbudget.report.json import json_chunks
 
@@ -152,22 +158,52 @@ def run(
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
-    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
     min_margin: Annotated[
         str | None, typer.Option("--min-margin", metavar="MARGIN", help="Override the required margin, e.g. '3 dB'.")
     ] = None,
+    plot: Annotated[Path | None, typer.Option(
+        "--plot", metavar="FILE",
+        help="Also draw the power along the chain (and the margin per wavelength) as FILE.png or FILE.svg; "
+             'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     allow_path: AllowPath = None,
 ):
     """Print the budget of one link: every segment, received power, margins, verdict.
 
     Exit status 0 the link closes, 1 it does not, 2 the input is wrong, 3 a bug.
     """
+    _check_plot_option(plot, output)
     loaded, result = _evaluated(link, allow_path or (), _margin_override(min_margin))
-    _emit(result, output_format, output, force, protected=[link, *loaded.referenced_files])
+    protected = [link, *loaded.referenced_files]
+    if plot is not None:
+        _write_plot(result, plot, force, protected)
+    _emit(result, output_format, output, force, protected, link)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
 
-def _emit(result, output_format, output, force, protected):
+def _check_plot_option(plot, output):
+    """Before any work: ``--plot`` names a PNG or SVG file other than ``--output``, and matplotlib is there."""
+    if plot is None:
+        return
+    from linkbudget.report.plots import PLOT_SUFFIXES, PlotsUnavailable, require_matplotlib
+
+    if plot.suffix.lower() not in PLOT_SUFFIXES:
+        _fail_input(f"--plot: {plot}: give a file name ending in {' or '.join(PLOT_SUFFIXES)}")
+    if output is not None and plot.resolve() == output.resolve():
+        _fail_input(f"--plot: {plot}: the same file as --output; give two names")
+    try:
+        require_matplotlib()
+    except PlotsUnavailable as missing:
+        _fail_input(f"--plot: {missing}")
+
+
+def _write_plot(result, plot, force, protected):
+    from linkbudget.report.plots import figure, plot_bytes, run_panels
+
+    _write_output(plot, plot_bytes(figure(run_panels(result)), plot.suffix[1:].lower()), force, protected)
+
+
+def _emit(result, output_format, output, force, protected, link=None):
     if output is None and output_format is Format.terminal:
         from rich.console import Console
 
@@ -175,25 +211,33 @@ def _emit(result, output_format, output, force, protected):
 
         Console().print(render(result))
         return
-    text = _report_text(result, output_format)
-    if output is None:
-        sys.stdout.writelines([text] if isinstance(text, str) else text)
-        return
-    from linkbudget.report.output import OutputError, write_atomic
+    _write_or_print(_report_text(result, output_format, link), output, force, protected)
 
-    try:
-        write_atomic(output, text, overwrite=force, protected=protected)
-    except OutputError as error:
-        _fail_input(str(error))
+
+class ReportFormat(str, Enum):
+    """The formats of ``check`` and ``diff``."""
+
+    text = "text"
+    json = "json"
+    markdown = "markdown"
 
 
 @app.command(cls=_Command)
 def check(
-    links: Annotated[list[Path], typer.Argument(metavar="LINK", help="One or more link files.")],
+    links: Annotated[list[str], typer.Argument(
+        metavar="LINK", help="Link files, folders (their .yaml/.yml files), glob patterns, or - for standard input.")],
     min_margin: Annotated[str | None, typer.Option(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")
     ] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Report format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write the report to this file.")
+    ] = None,
+    junit: Annotated[
+        Path | None, typer.Option("--junit", metavar="FILE", help="Also write JUnit XML: one test case per link.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
     max_hazard_level: Annotated[str | None, typer.Option(
         "--max-hazard-level", metavar="LEVEL",
         help="Fail a link with a reachable point above this hazard level (1, 1M, 3R, 3B), by its estimate.")
@@ -212,32 +256,129 @@ def check(
 
     Exit status 0 every link passes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
-    from linkbudget.config import ConfigError, load_link
+    import time
+
+    from linkbudget.config import ConfigError
     from linkbudget.engine import evaluate
     from linkbudget.gates import gate_failures
-    from linkbudget.report.summary import check_error_line, check_line, check_summary
+    from linkbudget.inputs import expand, load_argument
+    from linkbudget.report import check as reports
 
     required = _margin_override(min_margin)
     gates = {"max_hazard_level": _hazard_level_option(max_hazard_level),
-             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, upper=0.0,
-                                                     what="a back reflection, a fraction of the launch,"),
-             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, lower=0.0, what="a polarization-dependent loss")}
-    closes = fails = broken = gated = 0
-    for path in links:
+             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, lower=None,
+                                                     upper=0.0, what="a back reflection, a fraction of the launch,"),
+             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, what="a polarization-dependent loss")}
+    outcomes, protected = [], []
+    streaming = output is None and output_format is ReportFormat.text
+    for item in expand(links):
+        started = time.perf_counter()
         try:
-            result = evaluate(load_link(path, allow_path or ()), required_margin_db=required)
+            loaded = load_argument(item, allow_path or ())
+            protected += [item.path, *loaded.referenced_files] if item.path else [*loaded.referenced_files]
+            result = evaluate(loaded, required_margin_db=required)
+            outcome = reports.CheckOutcome(item.name, result, seconds=time.perf_counter() - started,
+                                           failures=tuple(gate_failures(result, **gates)))
         except ConfigError as error:
-            broken += 1
-            typer.echo(check_error_line(path), err=False)
-            typer.echo(str(error), err=True)
-            continue
-        failures = gate_failures(result, **gates)
-        typer.echo(check_line(result, path, failures))
-        closes += result.closes
-        fails += not result.closes
-        gated += bool(failures)
-    typer.echo(check_summary(len(links), closes, fails, broken, gated))
-    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if fails or gated else EXIT_OK)
+            outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
+        outcomes.append(outcome)
+        if streaming:
+            typer.echo(outcome.line)
+        if outcome.error is not None:
+            typer.echo(outcome.error, err=True)
+    if streaming:
+        typer.echo(reports.summary_line(outcomes))
+    else:
+        render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
+                  ReportFormat.json: lambda found: reports.render_json(found, required)}[output_format]
+        _write_or_print(render(outcomes), output, force, protected)
+    if junit is not None:
+        _write_or_print(reports.render_junit(outcomes), junit, force, protected)
+    broken = reports.counts(outcomes)[3]
+    raise typer.Exit(EXIT_INPUT if broken else EXIT_FAILS if reports.failed(outcomes) else EXIT_OK)
+
+
+def _write_or_print(text, output, force, protected):
+    """``text`` (a string or its pieces) to standard output, or atomically to the file ``output``."""
+    if output is None:
+        sys.stdout.writelines([text] if isinstance(text, str) else text)
+        return
+    _write_output(output, text, force, protected)
+
+
+def _write_output(output, text, force, protected=()):
+    """Write an output file atomically (:func:`~linkbudget.report.output.write_atomic`); a refusal exits 2."""
+    from linkbudget.report.output import OutputError, write_atomic
+
+    try:
+        write_atomic(output, text, overwrite=force, protected=protected)
+    except OutputError as error:
+        _fail_input(str(error))
+
+
+@app.command(cls=_Command)
+def diff(
+    first: Annotated[str, typer.Argument(metavar="OLD|LINK", help="The old link file, or the link to compare.")],
+    second: Annotated[str | None, typer.Argument(
+        metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
+    against: Annotated[str | None, typer.Option(
+        "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
+    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    max_margin_loss: Annotated[str | None, typer.Option(
+        "--max-margin-loss", metavar="DB",
+        help="Exit 1 when the worst-case margin falls by more than this at any wavelength, e.g. '0.5dB'.")] = None,
+    allow_path: AllowPath = None,
+):
+    """What a change did to a link: two files, or one file at two git revisions.
+
+    Exit status 0 compared (and the gate, if given, passed), 1 --max-margin-loss exceeded,
+    2 the input is wrong (a file, a revision, no repository), 3 a bug.
+    """
+    from linkbudget.config import ConfigError
+    from linkbudget.diff import compare, load_sides
+    from linkbudget.gitread import GitError
+
+    max_loss_db = _ratio_option("--max-margin-loss", max_margin_loss)
+    try:
+        old, new = load_sides(first, second, against=against, allow_paths=tuple(allow_path or ()))
+    except (GitError, ConfigError) as error:
+        _fail_input(str(error))
+    found = compare(old, new)
+    if output is None and output_format is ReportFormat.text:
+        from rich.console import Console
+
+        from linkbudget.report.diff_text import render_terminal
+
+        Console().print(render_terminal(found, max_loss_db))
+    else:
+        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force,
+                        [side.link_path for side in (old, new) if side.link_path] + [
+                            path for side in (old, new) for path in side.link.referenced_files])
+    raise typer.Exit(EXIT_FAILS if max_loss_db is not None and found.margin_loss_exceeds(max_loss_db) else EXIT_OK)
+
+
+def _diff_text(found, output_format, max_loss_db):
+    if output_format is ReportFormat.json:
+        from linkbudget.report.diff_json import diff_json_chunks
+
+        return diff_json_chunks(found, max_loss_db)
+    if output_format is ReportFormat.markdown:
+        from linkbudget.report.diff_text import render_markdown
+
+        return render_markdown(found, max_loss_db)
+    import io
+
+    from rich.console import Console
+
+    from linkbudget.report.diff_text import render_terminal
+
+    console = Console(file=io.StringIO(), width=120)
+    console.print(render_terminal(found, max_loss_db))
+    return console.file.getvalue()
 
 
 @app.command(cls=_Command)
@@ -281,6 +422,22 @@ def materials(
         _fail_input(f"{error}{format_hint(getattr(error, 'hint', None))}")
     except ConfigError as error:  # a malformed material file, placed
         _fail_input(str(error))
+
+
+@app.command(cls=_Command)
+def schema(
+    output: Annotated[
+        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
+    ] = None,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+):
+    """Print the JSON Schema of link files, for an editor's YAML language server."""
+    from linkbudget.config.json_schema import schema_text
+
+    if output is None:
+        sys.stdout.write(schema_text())
+    else:
+        _write_output(output, schema_text(), force)
 
 
 def _interrupted(signum, frame):

@@ -82,9 +82,18 @@ WAVELENGTH_EXAMPLE = "1550 nm"
 #: A decimal number as the config language writes one (``-1.5``, ``.5``, ``2e-3``); the one pattern for numbers.
 NUMBER_PATTERN = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][-+]?\d+)?"
 
-_QUANTITY = re.compile(
-    rf"^\s*(?P<number>{NUMBER_PATTERN})\s*(?P<unit>\S*)\s*$", re.ASCII
-)
+
+def quantity_pattern(unit=r"\S*"):
+    """The regular expression (for ``re.ASCII``) of a quantity text: a number, then a unit matching
+    the pattern ``unit`` (default: any word), spaces allowed around both.
+
+    The loader reads every quantity with it; the JSON Schema of the language
+    (:mod:`linkbudget.config.json_schema`) gives it each dimension's units.
+    """
+    return rf"^\s*(?P<number>{NUMBER_PATTERN})\s*(?P<unit>{unit})\s*$"
+
+
+_QUANTITY = re.compile(quantity_pattern(), re.ASCII)
 
 
 class UnitError(ValueError):

@@ -9,6 +9,7 @@ mapping ``{min, typ, max}`` (any subset holding ``typ``, or ``min`` and ``max``)
 import math
 import sys
 import typing
+from dataclasses import dataclass
 from functools import cache
 from typing import Annotated, Any, ClassVar
 
@@ -16,6 +17,7 @@ from pydantic import (
     BaseModel,
     BeforeValidator,
     ConfigDict,
+    Field,
     create_model,
     model_validator,
 )
@@ -26,6 +28,29 @@ from linkbudget.units import parse_quantity
 #: Number of standard deviations a ``{mean, sigma}`` spread spans on each side in the
 #: worst-case budget (common practice: ±3σ covers 99.7 % of a normal distribution).
 SIGMA_SPAN = 3.0
+
+@dataclass(frozen=True)
+class Written:
+    """How a field is written in a link file, for the JSON Schema of the language.
+
+    ``form`` is ``"quantity"`` (text with a unit of ``dimension``, such as ``example``),
+    ``"number"``, ``"integer"``, ``"index"`` (a number or ``n+κj`` text) or ``"number or text"``
+    (text matching ``pattern``); ``bounds`` is the field's valid range. Pydantic
+    calls :meth:`__get_pydantic_json_schema__` only when a schema is asked for
+    (:mod:`linkbudget.config.json_schema` builds it), never while a link is validated.
+    """
+
+    form: str
+    dimension: str | None = None
+    bounds: Range | None = None
+    example: str | None = None
+    pattern: str | None = None  # a ``re.ASCII`` expression the text of a "number or text" field matches
+
+    def __get_pydantic_json_schema__(self, core_schema, handler):
+        from linkbudget.config.json_schema import written_schema
+
+        return written_schema(self)
+
 
 class InputProblem(ValueError):
     """An input problem placed at a key path (relative to the model or segment raising it).
@@ -68,7 +93,7 @@ def quantity(dimension, *, bounds=None, example=None):
     def parse(value):
         return _within(parse_quantity(value, dimension, example), bounds)
 
-    return Annotated[float, BeforeValidator(parse), bounds]
+    return Annotated[float, BeforeValidator(parse), bounds, Written("quantity", dimension, bounds, example)]
 
 
 def number(*, bounds=None):
@@ -82,7 +107,7 @@ def number(*, bounds=None):
             raise ValueError(f"{value!r} is not a finite number")
         return _within(float(value), bounds)
 
-    return Annotated[float, BeforeValidator(parse), bounds]
+    return Annotated[float, BeforeValidator(parse), bounds, Written("number", bounds=bounds)]
 
 
 def integer(*, bounds):
@@ -92,7 +117,7 @@ def integer(*, bounds):
             raise ValueError(f"expected a whole number, got {value!r}")
         return bounds.check(value)
 
-    return Annotated[int, BeforeValidator(parse), bounds]
+    return Annotated[int, BeforeValidator(parse), bounds, Written("integer", bounds=bounds)]
 
 
 def complex_index(value):
@@ -122,7 +147,7 @@ def _index_field(*, metal_allowed):
             raise ValueError(message)
         return index
 
-    return Annotated[complex, BeforeValidator(parse)]
+    return Annotated[complex, BeforeValidator(parse), Written("index")]
 
 
 #: The index of a segment that may be a metal (a bulk medium, a thin-film layer).
@@ -225,6 +250,15 @@ _INTERNAL_UNIT = {"length": "m", "power": "dB", "ratio": "dB", "attenuation": "d
                   "angle": "rad", "number": ""}
 
 
+#: The keys of a spread other than ``sigma``, with their descriptions.
+_SPREAD_KEYS = {
+    "min": "Lowest value; with max alone, typ is their midpoint.",
+    "typ": "Typical value, used by the nominal budget.",
+    "max": "Highest value.",
+    "mean": "Mean of a normal spread, with sigma.",
+}
+
+
 @cache
 def spread(dimension, *, bounds=None):
     """A spread model whose values are quantities of ``dimension`` within ``bounds`` (a
@@ -243,8 +277,8 @@ def spread(dimension, *, bounds=None):
         f"Spread_{dimension}_{'any' if bounds is None else bounds.what.replace(' ', '_')}",
         __base__=SpreadBase,
         __module__=__name__,
-        **{key: (value | None, None) for key in ("min", "typ", "max", "mean")},
-        sigma=(width | None, None),
+        **{key: (value | None, Field(None, description=text)) for key, text in _SPREAD_KEYS.items()},
+        sigma=(width | None, Field(None, description="Standard deviation of a normal spread, with mean.")),
     )
     model.bounds = bounds
     return model

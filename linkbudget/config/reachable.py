@@ -14,7 +14,7 @@ point, with the ``reason`` it cannot be reached (an enclosure), shown in every r
           reason: inside the sealed sensor head; opened only with the laser off
 """
 
-from pydantic import model_validator
+from pydantic import Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Strict
 
@@ -25,8 +25,8 @@ SOURCE_POINT, RECEIVER_POINT = "source output", "receiver input"
 class AddedPoint(Strict):
     """A reachable point after the segment named ``after``, shown as ``name``."""
 
-    after: str
-    name: str | None = None
+    after: str = Field(description="The segment the point follows; it takes the power after that segment.")
+    name: str | None = Field(None, description="The point's name in the reports (default: after SEGMENT).")
 
     @property
     def shown_name(self):
@@ -36,8 +36,8 @@ class AddedPoint(Strict):
 class ExcludedPoint(Strict):
     """A default point (a connector's or gap's name, or an end) that cannot be reached, and why."""
 
-    at: str
-    reason: str
+    at: str = Field(description="A connector's or gap's name, or source output or receiver input.")
+    reason: str = Field(description="Why nobody can reach the point (an enclosure, an interlock); shown in the report.")
 
     @model_validator(mode="after")
     def _reason_given(self):
@@ -49,8 +49,8 @@ class ExcludedPoint(Strict):
 class Reachable(Strict):
     """The ``reachable:`` block: points added after segments, default points excluded."""
 
-    add: list[AddedPoint] = []
-    exclude: list[ExcludedPoint] = []
+    add: list[AddedPoint] = Field([], description="Points added after named segments.")
+    exclude: list[ExcludedPoint] = Field([], description="Default points nobody can reach, each with its reason.")
 
 
 def default_point_names(segments):

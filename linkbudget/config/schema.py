@@ -30,9 +30,10 @@ class Band(Strict):
     ``to`` is ``to`` (round-off of the division), never a second point beside it.
     """
 
-    start: Wavelength = Field(alias="from")
-    stop: Wavelength = Field(alias="to")
-    step: quantity("length", bounds=RANGES["band step"])
+    start: Wavelength = Field(alias="from", description="First wavelength of the sweep.")
+    stop: Wavelength = Field(alias="to", description="Last wavelength of the sweep, always included.")
+    step: quantity("length", bounds=RANGES["band step"]) = Field(
+        description="Spacing of the sweep; the last step may be shorter.")
 
     @model_validator(mode="after")
     def _ordered(self):
@@ -57,19 +58,24 @@ class Source(Strict):
     ``max_back_reflection``: the most light returning toward it that it tolerates, relative to its
     launch power (e.g. ``-30 dB``)."""
 
-    power: spread("power", bounds=RANGES["source power"])
-    spectral_width: quantity("length", bounds=RANGES["spectral width"]) | None = None
-    max_back_reflection: quantity("ratio", bounds=RANGES["back-reflection tolerance"]) | None = None
-    name: str | None = None
+    power: spread("power", bounds=RANGES["source power"]) = Field(description="Power launched into the chain.")
+    spectral_width: quantity("length", bounds=RANGES["spectral width"]) | None = Field(
+        None, description="Spectral width (FWHM) of the source; sets its coherence length.")
+    max_back_reflection: quantity("ratio", bounds=RANGES["back-reflection tolerance"]) | None = Field(
+        None, description="Most light returning toward the source that it tolerates, relative to its launch.")
+    name: str | None = Field(None, description="Name of the transmitter, for the reports.")
 
 
 class Receiver(Strict):
     """The receiver: ``sensitivity``, optional ``overload``, and the ``required_margin``."""
 
-    sensitivity: quantity("power", bounds=RANGES["receiver power"])
-    overload: quantity("power", bounds=RANGES["receiver power"]) | None = None
-    required_margin: quantity("ratio", bounds=RANGES["required margin"]) = 0.0
-    name: str | None = None
+    sensitivity: quantity("power", bounds=RANGES["receiver power"]) = Field(
+        description="Least power the receiver needs.")
+    overload: quantity("power", bounds=RANGES["receiver power"]) | None = Field(
+        None, description="Most power the receiver takes; above sensitivity.")
+    required_margin: quantity("ratio", bounds=RANGES["required margin"]) = Field(
+        "0 dB", validate_default=True, description="Margin the worst case must keep above sensitivity.")
+    name: str | None = Field(None, description="Name of the receiver, for the reports.")
 
     @model_validator(mode="after")
     def _overload_above_sensitivity(self):
@@ -82,15 +88,16 @@ class Receiver(Strict):
 class LinkSpec(Strict):
     """A whole link file. ``chain`` items are validated by their own kind (see the registry)."""
 
-    title: str
-    description: str | None = None
-    wavelength: Wavelength | None = None
-    channels: list[Wavelength] | None = Field(default=None, min_length=1)
-    band: Band | None = None
-    source: Source
-    receiver: Receiver
-    chain: list[Any] = Field(min_length=1)
-    reachable: Reachable | None = None
+    title: str = Field(description="What the link is, in a line.")
+    description: str | None = Field(None, description="More words on the link, for the reader.")
+    wavelength: Wavelength | None = Field(None, description="The one wavelength the link carries.")
+    channels: list[Wavelength] | None = Field(None, min_length=1, description="The wavelengths the link carries.")
+    band: Band | None = Field(None, description="A wavelength sweep {from, to, step}.")
+    source: Source = Field(description="The transmitter.")
+    receiver: Receiver = Field(description="The receiver.")
+    chain: list[Any] = Field(min_length=1, description="The segments, in the order light passes them.")
+    reachable: Reachable | None = Field(
+        None, description="Points where a person can reach the light: added after segments, or excluded with a reason.")
 
     @model_validator(mode="after")
     def _one_axis(self):

@@ -27,6 +27,8 @@ References
    and ray matrices; chapter numbers from memory: ch. 15 and 17).
 """
 
+import functools
+
 import numpy as np
 
 from linkbudget.physics.checks import finite, non_negative, positive
@@ -475,8 +477,8 @@ def misalignment_terms(w1_m, w2_m, wavelength_m, *, separation_m=0.0, n=1.0):
 
     A > 0, C > 0, B ≥ 0 (B = 0 without a gap) and 4AC − B² ∝ w1²((w1² + w2²)² + δ²) > 0, so the
     quadratic is positive definite in (d, θ): over a box of offsets and tilts its largest value
-    lies at a corner and its least on the edges nearest d = θ = 0 (used by the tolerance search of
-    :mod:`linkbudget.segments.coupling`).
+    lies at a corner and its least on the edges nearest d = θ = 0
+    (:func:`circular_coupling_extremes`).
 
     References
     ----------
@@ -495,6 +497,81 @@ def misalignment_terms(w1_m, w2_m, wavelength_m, *, separation_m=0.0, n=1.0):
     prefactor = 2.0 * np.sqrt(w1_sq * w2_sq / s_abs_sq)
     return (prefactor, sum_sq / s_abs_sq, k * w2_sq * delta / s_abs_sq,
             k**2 * w2_sq * (w1_sq * sum_sq + delta**2) / (4.0 * s_abs_sq))
+
+
+def wavenumber_per_m(wavelength_m, *, n=1.0):
+    """Wavenumber k = 2πn/λ [1/m] in a medium of index n, from the vacuum wavelength λ [m]."""
+    return 2.0 * np.pi * positive(n, "refractive index") / positive(wavelength_m, "wavelength")
+
+
+def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, offset_range_m, tilt_range_rad,
+                               cosine_range):
+    """(least, largest) coupling of two circular Gaussian modes over a box of offsets and tilts.
+
+    Both axes of :func:`coupling_efficiency_1d` together give, for an offset d along x and a tilt
+    θ turned at azimuth ψ from it (u = cos ψ),
+
+        η = 4w1²w2²/|S|² · exp(−2·Q/|S|²),  Q = Σd² − 2u·D·w2²·θd + w2²·H·θ²,
+
+    with Σ = w1² + w2², |S|² = Σ² + (2D/k)², H = k²w1²Σ/4 + D² and D the separation (the terms of
+    :func:`misalignment_terms` times |S|²). Q is a positive definite quadratic in (d, θ) and linear
+    in u with a slope −2D·w2²·θd ≤ 0. Over d ∈ [d_low, d_high], θ ∈ [θ_low, θ_high] and the
+    ``cosine_range`` (u_least, u_largest) where the least and the largest are sought (−1 and +1
+    over an unknown azimuth):
+
+    - the least coupling is Q's largest value, at a corner of the box (at (d_high, θ_high) when
+      u_least ≤ 0, every term then growing with d and θ);
+    - the largest is Q's least value, which lies on the edges θ = θ_low, at
+      d* = u·D·w2²·θ_low/Σ, or d = d_low, at θ* = u·D·w2²·d_low/(w2²H), each clipped into its
+      range (where ∂Q/∂d = 0 or ∂Q/∂θ = 0; on the far edges both derivatives are positive, as
+      4AC − B² > 0 in :func:`misalignment_terms`).
+
+    Parameters
+    ----------
+    w1_m, w2_m : array_like
+        Mode-field radii of the launched and the receiving mode [m].
+    wavenumber_per_m : array_like
+        k = 2πn/λ in the gap medium (:func:`wavenumber_per_m`).
+    separation_m : array_like
+        Axial distance D between the waists [m]; the radii, the wavenumber and the separation
+        broadcast together (e.g. candidates × wavelengths).
+    offset_range_m, tilt_range_rad : (float, float)
+        (low, high) of the offset [m] and of the tilt [rad], both ≥ 0.
+    cosine_range : (float, float)
+        cos ψ at which the least and the largest coupling are sought.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        The least and the largest η over the box, broadcast over the inputs.
+
+    References
+    ----------
+    .. [1] W. B. Joyce and B. C. DeLoach, "Alignment of Gaussian beams", Appl. Opt. 23, 4187 (1984)
+       (from memory): the overlap whose exponent this maximises and minimises.
+    """
+    w1_sq, w2_sq = positive(w1_m, "mode-field radius w1") ** 2, positive(w2_m, "mode-field radius w2") ** 2
+    gap_m = non_negative(separation_m, "separation")
+    (d_low, d_high), (t_low, t_high) = (sorted(non_negative(pair, name)) for pair, name in
+                                        ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
+    u_least, u_largest = cosine_range
+    k_sq = np.asarray(wavenumber_per_m) ** 2
+    sum_sq = w1_sq + w2_sq
+    inverse_s_sq = 1.0 / (sum_sq**2 + 4.0 * gap_m**2 / k_sq)
+    w2_sq_h = w2_sq * gap_m**2 + (w1_sq * w2_sq * sum_sq / 4.0) * k_sq  # w2²H
+    cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
+
+    def quadratic(d, theta, u):  # Q at the box point (d, θ) and the cosine u
+        return (sum_sq * d**2 - u * cross * theta * d) + w2_sq_h * theta**2
+
+    corners = [(d_high, t_high)] if u_least <= 0 else [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
+    most = functools.reduce(np.maximum, (quadratic(d, t, u_least) for d, t in corners))
+    fewest = quadratic(np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high), t_low, u_largest)
+    if u_largest * d_low > 0:
+        t_star = np.clip(u_largest * cross * d_low / (2.0 * w2_sq_h), t_low, t_high)
+        fewest = np.minimum(fewest, quadratic(d_low, t_star, u_largest))
+    scale = 4.0 * w1_sq * w2_sq * inverse_s_sq
+    return scale * np.exp(-2.0 * inverse_s_sq * most), scale * np.exp(-2.0 * inverse_s_sq * fewest)
 
 
 def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_across_m, wavelength_m, *,

@@ -221,13 +221,74 @@ def _encoded(value, depth):
 
 
 def _encoded_numbers(numbers, depth):
-    """A number list, one number a line as ``indent=2`` writes it: each slice goes through the
-    compact C encoder (the same float repr) and gets its line breaks by one replacement."""
+    """A number list, one number a line as ``indent=2`` writes it, slice by slice: in fixed
+    decimals where that is Python's float repr (:func:`_fixed_decimal_text`), else through the
+    compact C encoder with its line breaks put in by one replacement."""
     if not numbers.values.size:
         yield "[]"
         return
     inner = "\n" + _INDENT * (depth + 1)
     separator = "," + inner
-    for position, part in enumerate(numbers.slices()):
-        yield (separator if position else "[" + inner) + json.dumps(part)[1:-1].replace(", ", separator)
+    for position, start in enumerate(range(0, numbers.values.size, SLICE_NUMBERS)):
+        values = numbers.values[start:start + SLICE_NUMBERS]
+        text = _fixed_decimal_text(values, numbers.decimals, separator)
+        if text is None:
+            text = json.dumps(_number_list(values, numbers.decimals))[1:-1].replace(", ", separator)
+        yield (separator if position else "[" + inner) + text
     yield "\n" + _INDENT * depth + "]"
+
+
+def _fixed_decimal_text(values, decimals, separator):
+    """The values rounded to ``decimals`` and written as ``repr`` writes the rounded floats, joined
+    by ``separator``, built as one byte matrix; ``None`` where that is not sure for every value.
+
+    The scaled integer k = rint(x·10^d) is exact where :func:`_number_list` is sure, and the
+    rounded float is the double nearest to k/10^d (near ties take k from :func:`round`); below
+    2^(52 − 3.33·d) its ulp is under 10^−d, so no other decimal of d places or fewer maps to it
+    and its shortest repr is k/10^d itself, the fraction's trailing zeros dropped (one kept).
+    ``repr`` switches to an exponent below 1e-4, so those values, and non-finite ones, are left
+    to the caller.
+    """
+    scale = 10 ** decimals
+    if values.size <= _SHORT_LIST or not np.isfinite(values).all():
+        return None
+    with np.errstate(invalid="ignore", over="ignore"):
+        scaled = values * float(scale)
+        magnitude = np.abs(np.rint(scaled))
+        distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
+    for index in np.flatnonzero(~(distance_from_half > 2 * np.spacing(np.abs(scaled)))).tolist():
+        magnitude[index] = abs(round(_number(float(values[index]), decimals) * scale))  # a near tie: round()'s
+    if not np.all((magnitude < 2.0 ** (52 - 3.33 * decimals) * scale)
+                  & ((magnitude == 0) | (magnitude >= scale / 1e4))):
+        return None
+    whole = np.floor(magnitude / scale)  # exact: magnitude < 2^53, and its fraction is ≥ 1/scale or 0
+    fraction = magnitude - whole * scale
+    whole_places = len(str(int(whole.max())))
+    sign_column, point_column = 1, 2 + whole_places
+    chars = np.empty((values.size, 3 + whole_places + decimals), dtype=np.uint8)
+    chars[:, 0], chars[:, sign_column], chars[:, point_column] = ord(","), ord("-"), ord(".")
+    chars[:, sign_column + 1:point_column] = _digit_chars(whole, whole_places)
+    chars[:, point_column + 1:] = _digit_chars(fraction, decimals)
+    keep = np.ones(chars.shape, dtype=bool)
+    keep[:, sign_column] = (scaled < 0) & (magnitude > 0)
+    whole_length = 1 + np.searchsorted(10.0 ** np.arange(1, whole_places), whole, side="right")
+    keep[:, sign_column + 1:point_column] = np.arange(whole_places) >= (whole_places - whole_length)[:, None]
+    trailing_zeros = sum(np.floor(fraction / 10.0**places) * 10.0**places == fraction for places in range(1, decimals))
+    keep[:, point_column + 2:] = np.arange(1, decimals) < (decimals - trailing_zeros)[:, None]
+    return chars[keep].tobytes()[1:].decode("ascii").replace(",", separator)
+
+
+#: The three ASCII digits of 0 to 999, a row each.
+_THREE_DIGITS = np.array([list(f"{number:03d}".encode("ascii")) for number in range(1000)], dtype=np.uint8)
+
+
+def _digit_chars(integers, places):
+    """The ASCII digits of non-negative integers held exactly as floats (below 2^53), zero-padded
+    to ``places``, as a (n, places) byte matrix, three digits a lookup."""
+    groups = -(-places // 3)
+    parts, rest = [], integers
+    for _ in range(groups):
+        above = np.floor(rest / 1000.0)  # exact: the quotient's error is far below its distance to an integer
+        parts.append(_THREE_DIGITS[(rest - above * 1000.0).astype(np.intp)])
+        rest = above
+    return np.concatenate(parts[::-1], axis=1)[:, 3 * groups - places:]

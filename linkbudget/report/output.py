@@ -40,9 +40,10 @@ def write_atomic(path, text, *, overwrite=False, protected=()):
     ----------
     path : path-like
         Destination file.
-    text : str or iterable of str
-        Content (UTF-8), whole or in pieces written as they come (a large JSON result is never
-        one string); the file takes the destination's name only once every piece is written.
+    text : str, bytes or iterable of str
+        Content (text is written as UTF-8, bytes as they are, e.g. a PNG picture), whole or in
+        pieces written as they come (a large JSON result is never one string); the file takes the
+        destination's name only once every piece is written.
     overwrite : bool
         Replace an existing file or symlink; without it any existing entry is an error.
     protected : iterable of path-like
@@ -55,7 +56,7 @@ def write_atomic(path, text, *, overwrite=False, protected=()):
     """
     path = Path(path)
     try:
-        _write(path, [text] if isinstance(text, str) else text, overwrite, protected)
+        _write(path, [text] if isinstance(text, str | bytes) else text, overwrite, protected)
     except OSError as error:
         raise OutputError(f"{path}: cannot write: {error.strerror or error}") from None
 
@@ -87,7 +88,7 @@ def _write(path, pieces, overwrite, protected):
                 if kept_mode is not None:
                     os.fchmod(stream.fileno(), kept_mode)
                 for piece in pieces:
-                    stream.write(piece.encode("utf-8"))
+                    stream.write(piece.encode("utf-8") if isinstance(piece, str) else piece)
                 stream.flush()
                 os.fsync(stream.fileno())
             if overwrite:

@@ -5,6 +5,7 @@ from dataclasses import dataclass
 from typing import Literal
 
 import numpy as np
+from pydantic import Field
 
 from linkbudget.config.fields import InputProblem, SpreadBase, Strict, range_notes, spread
 from linkbudget.config.ranges import RANGES, mode_size_problem
@@ -148,7 +149,7 @@ class SegmentSpec(Strict):
     only what this class declares.
     """
 
-    name: str | None = None
+    name: str | None = Field(None, description="Name of the segment, unique in the chain; default: its kind and place.")
 
     def resolve(self, wavelength_m, files):
         """Check what needs the wavelength axis or other files (materials); return the resolved

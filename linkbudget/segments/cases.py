@@ -16,8 +16,6 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from linkbudget.config.fields import SpreadBase
-
 
 @dataclass(frozen=True)
 class Corner:
@@ -47,7 +45,7 @@ class Corner:
 
     def extreme(self, typical, least, largest):
         """This case's efficiency of a searched coupling: the least found (worst), the largest
-        (best), or the typical one; the typical point counts as found, so best ≥ typ ≥ worst."""
+        (best), or ``typical``, the nominal point's, which counts as found, so best ≥ typ ≥ worst."""
         if self.stack == 0:
             return typical
         return np.minimum(typical, least) if self.stack > 0 else np.maximum(typical, largest)
@@ -107,7 +105,7 @@ class Draws:
         return typical
 
 
-def _drawn_values(spread: SpreadBase, rng, count):
+def _drawn_values(spread, rng, count):
     """``count`` draws of one spread, by the distributions :class:`Draws` documents."""
     low, high = spread.low, spread.high
     if low == high:

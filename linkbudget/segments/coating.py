@@ -8,7 +8,7 @@ between the media of its two neighbours.
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr, model_validator
+from pydantic import Field, PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     ComplexIndex,
@@ -32,11 +32,14 @@ class Layer(Strict):
     ``quarter_waves: 2`` makes it a half-wave.
     """
 
-    material: str | None = None
-    index: ComplexIndex | None = None
-    thickness: quantity("length", bounds=RANGES["layer thickness"]) | None = None
-    quarter_wave: quantity("length", bounds=RANGES["wavelength"], example=WAVELENGTH_EXAMPLE) | None = None
-    quarter_waves: integer(bounds=RANGES["quarter-wave count"]) | None = None
+    material: str | None = Field(None, description="Catalog material or material file of the film (or index).")
+    index: ComplexIndex | None = Field(None, description="Refractive index n+κj of the film (or material).")
+    thickness: quantity("length", bounds=RANGES["layer thickness"]) | None = Field(
+        None, description="Physical thickness of the film (or quarter_wave).")
+    quarter_wave: quantity("length", bounds=RANGES["wavelength"], example=WAVELENGTH_EXAMPLE) | None = Field(
+        None, description="Design wavelength of a quarter-wave film (or thickness).")
+    quarter_waves: integer(bounds=RANGES["quarter-wave count"]) | None = Field(
+        None, description="Number of quarter-waves at quarter_wave; default 1.")
 
     @model_validator(mode="after")
     def _one_of_each(self):
@@ -66,7 +69,7 @@ class Coating(SegmentSpec):
     """
 
     kind: Literal["coating"]
-    layers: list[Layer]
+    layers: list[Layer] = Field(description="The films, in the order the light meets them.")
     _stack: tuple | None = PrivateAttr(default=None)
     @model_validator(mode="after")
     def _layer_count(self):

@@ -22,6 +22,7 @@ import numpy as np
 from linkbudget.physics import gaussian
 from linkbudget.physics.decibel import loss_db_from_transmittance
 from linkbudget.physics.gaussian import coupling_efficiency_tilt_azimuth
+from linkbudget.segments.cases import TYPICAL
 
 #: cos ψ of the tilt's azimuth ψ from the offset's direction, per ``tilt_direction`` value.
 TILT_DIRECTION_COSINES = {"along-offset": 1.0, "against-offset": -1.0, "across-offset": 0.0}
@@ -51,15 +52,27 @@ def _azimuth_cosine(case, tilt, tilt_direction):
 
 
 def _case_losses_db(cases, typical_at, search):
-    """case name -> loss [dB], from the efficiency each case's own point gives (``typical_at(case)``)
-    and, for the cases that search (worst, best), the least and largest efficiency ``search()``
-    finds over the tolerance box (run once, only when a case needs it)."""
-    found, losses = [], {}
+    """case name -> loss [dB], from the efficiency each case's own point gives (``typical_at(case)``);
+    the cases that search (worst, best) take the least and largest efficiency ``search()`` finds
+    over the tolerance box, or the nominal point's where that is beyond them. The search and the
+    nominal point are each evaluated once, and only when a case needs them."""
+    evaluated = {}
+
+    def once(key, compute):
+        if key not in evaluated:
+            evaluated[key] = compute()
+        return evaluated[key]
+
+    def nominal():
+        return once("nominal", lambda: typical_at(TYPICAL))
+
+    losses = {}
     for case in cases:
-        if case.searches and not found:
-            found.append(search())
-        least, largest = found[0] if case.searches else (None, None)
-        efficiency = case.extreme(typical_at(case), least, largest)
+        if case.searches:
+            least, largest = once("search", search)
+            efficiency = case.extreme(nominal(), least, largest)
+        else:
+            efficiency = nominal() if case == TYPICAL else typical_at(case)
         losses[case.name] = loss_db_from_transmittance(efficiency)
     return losses
 
@@ -88,11 +101,6 @@ def _worse_axis(efficiencies):
 def _circular(mode):
     """The mode has one axis for both (:meth:`~linkbudget.segments.base.Mode.circular`)."""
     return mode.x is mode.y
-
-
-#: cos ψ of the two parallel turns, where the extremes over an unknown azimuth lie between
-#: circular modes (ln η is then linear in cos ψ, see :func:`_searched_cosines`).
-_PARALLEL_TURNS = np.array([[-1.0], [1.0]])
 
 
 def _searched_cosines(at):
@@ -183,21 +191,72 @@ def coupling_losses_db(wavelength_m, before, after, cases, *, offset=None, tilt=
 
 
 def _searched_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
+    """(least, largest) coupling efficiency over the tolerance box and every azimuth the tilt may
+    have: in closed form over offset, tilt and azimuth between circular modes
+    (:func:`_circular_extremes`), else over the box's corners (:func:`_corner_extremes`)."""
+    search = _circular_extremes if _circular(before) and _circular(after) else _corner_extremes
+    return search(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction)
+
+
+def _span(spread):
+    """(low, high) of a spread, (0, 0) when absent."""
+    ends = _ends(spread)
+    return ends[0], ends[-1]
+
+
+#: Wavelengths the closed-form search evaluates at once: its candidates-by-wavelengths
+#: temporaries stay in the cache and are reused instead of being mapped afresh on a long sweep.
+_BLOCK_POINTS = 8192
+
+
+def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
+    """(least, largest) coupling between circular modes: the closed form over offset, tilt and
+    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) at every candidate
+    of mode sizes and separation at once, in blocks of wavelengths, so memory is O(wavelengths)."""
+    given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
+    box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
+               cosine_range=(-1.0, 1.0) if given is None else (given, given))
+    wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
+    candidates = [(w1, w2, z) for (w1, _), (w2, _), z in itertools.product(
+        _mode_candidates(before, after), _mode_candidates(after, before), _ends(separation))]
+    w1, w2, gap = (_candidate_axis(values) for values in zip(*candidates, strict=True))
+    least, largest = np.empty_like(wavenumber), np.empty_like(wavenumber)
+    for start in range(0, wavenumber.shape[-1], _BLOCK_POINTS):
+        block = slice(start, start + _BLOCK_POINTS)
+        low, high = gaussian.circular_coupling_extremes(_in_block(w1, block), _in_block(w2, block),
+                                                        wavenumber[block], separation_m=_in_block(gap, block), **box)
+        least[block], largest[block] = low.min(axis=0), high.max(axis=0)
+    return least.reshape(np.shape(wavelength_m)), largest.reshape(np.shape(wavelength_m))
+
+
+def _candidate_axis(values):
+    """Candidate values stacked on a leading axis: (candidates, 1) for constants, else
+    (candidates, wavelengths)."""
+    arrays = np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values))
+    return np.stack(arrays).reshape(len(arrays), -1)
+
+
+def _in_block(values, block):
+    """Candidate values over this block of wavelengths (a constant is the same in every block)."""
+    return values if values.shape[-1] == 1 else values[:, block]
+
+
+def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling efficiency over the corners of the tolerance box and every
-    azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks."""
+    azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks: for elliptical modes,
+    whose overlap is not one quadratic in offset and tilt over both axes."""
     shape = np.shape(wavelength_m)
-    circular = _circular(before) and _circular(after)
     corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
                                      _ends(offset), _ends(tilt), _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
         (bx, by, ax, ay), (d, theta, gap) = _stacked(corners[start:start + per_chunk], shape)
-        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n, circular=circular)
+        at = _per_offset_axis(wavelength_m, (bx, by), (ax, ay), d, theta, gap, n)
         if tilt_direction is not None:
             cosines = np.array([[TILT_DIRECTION_COSINES[tilt_direction]]])
         else:
-            cosines = _PARALLEL_TURNS if circular else _searched_cosines(at)
+            cosines = _searched_cosines(at)
         values = _worse_axis(at(cosines))  # (corner, azimuth, wavelength)
         least.append(values.min(axis=(0, 1)))
         largest.append(values.max(axis=(0, 1)))

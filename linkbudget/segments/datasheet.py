@@ -10,7 +10,7 @@ wavelength; its spread (``{min, typ, max}`` or ``{mean, sigma}``) sets the budge
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr, model_validator
+from pydantic import Field, PrivateAttr, model_validator
 
 from linkbudget.config.fields import (
     DielectricIndex,
@@ -58,16 +58,19 @@ class _Joint(SegmentSpec):
     when the joint has no gap.
     """
 
-    loss: JointLossSpread | None = None
-    joint: JointType | None = None
-    offset: OffsetSpread | None = None
-    tilt: TiltSpread | None = None
-    tilt_direction: TiltDirection | None = None
-    gap: length_spread("joint gap") | None = None
-    gap_material: str | None = None
-    gap_index: DielectricIndex | None = None
-    mode_field_diameter_before: ModeFieldDiameterSpread | None = None
-    mode_field_diameter_after: ModeFieldDiameterSpread | None = None
+    loss: JointLossSpread | None = Field(None, description="Datasheet insertion loss (or the geometry).")
+    joint: JointType | None = Field(None, description="How the faces meet when both neighbours carry a medium.")
+    offset: OffsetSpread | None = Field(None, description="Lateral offset between the two modes.")
+    tilt: TiltSpread | None = Field(None, description="Angle between the two modes' axes.")
+    tilt_direction: TiltDirection | None = Field(None, description="Which way the tilt turns relative to the offset.")
+    gap: length_spread("joint gap") | None = Field(None, description="Separation of the two faces.")
+    gap_material: str | None = Field(
+        None, description="Catalog material or material file in the gap (or gap_index); default air.")
+    gap_index: DielectricIndex | None = Field(None, description="Refractive index in the gap (or gap_material).")
+    mode_field_diameter_before: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter on the side before the joint; default: the neighbour's.")
+    mode_field_diameter_after: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter on the side after the joint; default: the neighbour's.")
     _gap_index: np.ndarray | None = PrivateAttr(default=None)
 
     @model_validator(mode="after")
@@ -169,7 +172,8 @@ class Connector(_Joint):
     """A mated connector pair: insertion ``loss`` (or geometry) and an optional ``return_loss``."""
 
     kind: Literal["connector"]
-    return_loss: spread("ratio", bounds=RANGES["return loss"]) | None = None
+    return_loss: spread("ratio", bounds=RANGES["return loss"]) | None = Field(
+        None, description="Datasheet return loss of the mated pair (spread allowed: its low end is the worst case).")
 
     def reflectance(self, wavelength_m):
         """The datasheet return loss RL (its typical value) as the reflectance R = 10^(−RL/10),
@@ -195,7 +199,7 @@ class Splice(_Joint):
     """``count`` fusion or mechanical splices, each with insertion ``loss`` (or geometry)."""
 
     kind: Literal["splice"]
-    count: integer(bounds=RANGES["splice count"]) = 1
+    count: integer(bounds=RANGES["splice count"]) = Field(1, description="Number of identical splices.")
 
     def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
         return self.count * super().loss_db(wavelength_m, case)
@@ -209,8 +213,8 @@ class Element(SegmentSpec):
     """A fixed loss (filter, isolator, allowance) or, with a negative loss, a gain."""
 
     kind: Literal["element"]
-    loss: ElementLossSpread
-    note: str | None = None
+    loss: ElementLossSpread = Field(description="Fixed loss; a negative loss is a gain.")
+    note: str | None = Field(None, description="A short note shown beside the row.")
 
     def role(self):
         return PASSES

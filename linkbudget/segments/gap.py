@@ -15,7 +15,7 @@ The gap's loss is the sum of
 from typing import Literal
 
 import numpy as np
-from pydantic import model_validator
+from pydantic import Field, model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, Strict
 from linkbudget.config.ranges import RANGES, mode_size_problem
@@ -47,9 +47,12 @@ class Beam(Strict):
     collimated source (its waist radius is then λ/(π·n·θ)). ``waist``, a radius, is the spelling of
     earlier releases, read for this one with a note."""
 
-    waist_diameter: length_spread("beam waist diameter") | None = None
-    waist: length_spread("beam waist") | None = None
-    divergence: spread("angle", bounds=RANGES["beam divergence"]) | None = None
+    waist_diameter: length_spread("beam waist diameter") | None = Field(
+        None, description="Waist diameter (1/e² intensity) at the gap's start (or divergence).")
+    waist: length_spread("beam waist") | None = Field(
+        None, description="Waist radius: the spelling of earlier releases; write waist_diameter.")
+    divergence: spread("angle", bounds=RANGES["beam divergence"]) | None = Field(
+        None, description="Far-field divergence half-angle of a collimated source (or waist_diameter).")
 
     @model_validator(mode="after")
     def _one(self):
@@ -88,15 +91,17 @@ class Gap(Bulk):
     """A free-space gap of ``length`` through an ambient medium (``material``/``index``; default air)."""
 
     kind: Literal["gap"]
-    index: DielectricIndex | None = None
-    length: length_spread("gap length")
-    visibility: length_spread("visibility") | None = None
-    visibility_model: Literal["kim", "kruse"] = "kim"
-    beam: Beam | None = None
-    aperture: length_spread("aperture diameter") | None = None
-    offset: OffsetSpread | None = None
-    tilt: TiltSpread | None = None
-    tilt_direction: TiltDirection | None = None
+    index: DielectricIndex | None = Field(None, description="Refractive index of the ambient medium; default: air.")
+    length: length_spread("gap length") = Field(description="Length of the free-space path.")
+    visibility: length_spread("visibility") | None = Field(
+        None, description="Meteorological visibility, for the extinction of the air.")
+    visibility_model: Literal["kim", "kruse"] = Field("kim", description="Model turning visibility into extinction.")
+    beam: Beam | None = Field(None, description="The beam launched into the gap; default: the mode before it.")
+    aperture: length_spread("aperture diameter") | None = Field(
+        None, description="Diameter of the receiving aperture; default: the mode after the gap.")
+    offset: OffsetSpread | None = Field(None, description="Lateral offset of the beam at the receiving end.")
+    tilt: TiltSpread | None = Field(None, description="Tilt of the beam at the receiving end.")
+    tilt_direction: TiltDirection | None = Field(None, description="Which way the tilt turns relative to the offset.")
 
     @model_validator(mode="after")
     def _forms(self):

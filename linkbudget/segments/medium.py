@@ -9,7 +9,7 @@ converts a medium's loss.
 from typing import Literal
 
 import numpy as np
-from pydantic import model_validator
+from pydantic import Field, model_validator
 
 from linkbudget.config.fields import ComplexIndex, InputProblem, number, quantity
 from linkbudget.config.ranges import RANGES
@@ -73,11 +73,15 @@ class Fiber(OpticalSegment):
     """
 
     kind: Literal["fiber"]
-    length: length_spread("fibre length")
-    attenuation: attenuation_spread("fibre attenuation")
-    mode_field_diameter: ModeFieldDiameterSpread | None = None
-    core_diameter: quantity("length", bounds=RANGES["core diameter"]) | None = None
-    numerical_aperture: number(bounds=RANGES["numerical aperture"]) | None = None
+    length: length_spread("fibre length") = Field(description="Length of the fibre.")
+    attenuation: attenuation_spread("fibre attenuation") = Field(
+        description="Datasheet attenuation per length, e.g. 0.35 dB/km.")
+    mode_field_diameter: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter (1/e² intensity), for the joints beside it.")
+    core_diameter: quantity("length", bounds=RANGES["core diameter"]) | None = Field(
+        None, description="Core diameter, with numerical_aperture: the mode from the core geometry.")
+    numerical_aperture: number(bounds=RANGES["numerical aperture"]) | None = Field(
+        None, description="Numerical aperture of the core, with core_diameter.")
 
     @model_validator(mode="after")
     def _one_mode_description(self):
@@ -122,9 +126,11 @@ _BULK_FORMS = ("kappa", "absorption", "attenuation")
 class Bulk(OpticalSegment):
     """An optical segment whose bulk loss is the flux law over an (oblique) path."""
 
-    kappa: KappaSpread | None = None
-    absorption: AbsorptionSpread | None = None
-    attenuation: BulkAttenuationSpread | None = None
+    kappa: KappaSpread | None = Field(None, description="Extinction coefficient κ of the medium.")
+    absorption: AbsorptionSpread | None = Field(
+        None, description="Absorption coefficient α of the medium, e.g. 0.5 /cm.")
+    attenuation: BulkAttenuationSpread | None = Field(
+        None, description="Attenuation of the medium per length, e.g. 0.2 dB/mm.")
 
     def _check_bulk_forms(self):
         forms = [key for key in _BULK_FORMS if getattr(self, key) is not None]
@@ -185,10 +191,12 @@ class Medium(Bulk):
     """
 
     kind: Literal["medium"]
-    index: ComplexIndex | None = None
-    thickness: length_spread("medium thickness") | None = None
-    length: length_spread("medium thickness") | None = None
-    multiple_reflections: bool = False
+    index: ComplexIndex | None = Field(None, description="Complex refractive index n+κj of the medium.")
+    thickness: length_spread("medium thickness") | None = Field(
+        None, description="Thickness crossed by the light (or length).")
+    length: length_spread("medium thickness") | None = Field(
+        None, description="Length crossed by the light (or thickness).")
+    multiple_reflections: bool = Field(False, description="Sum the light bouncing between its two faces.")
 
     @model_validator(mode="after")
     def _one_of_each(self):

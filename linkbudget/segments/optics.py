@@ -8,7 +8,7 @@ them; a segment without a medium is transparent to that logic.
 from typing import Literal
 
 import numpy as np
-from pydantic import PrivateAttr, model_validator
+from pydantic import Field, PrivateAttr, model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, quantity
 from linkbudget.config.ranges import RANGES, index_notes
@@ -58,10 +58,11 @@ class OpticalSegment(SegmentSpec):
     the light keeps the s and p shares the faces before left it with (unpolarized at the start).
     """
 
-    index: DielectricIndex | None = None
-    material: str | None = None
-    angle: quantity("angle", bounds=RANGES["angle of incidence"]) | None = None
-    polarization: Polarization | None = None
+    index: DielectricIndex | None = Field(None, description="Refractive index n or n+κj of its faces.")
+    material: str | None = Field(None, description="Catalog material or material file of its faces.")
+    angle: quantity("angle", bounds=RANGES["angle of incidence"]) | None = Field(
+        None, description="Angle of incidence on its entry face, in the medium before it.")
+    polarization: Polarization | None = Field(None, description="Polarization of the light arriving at its entry face.")
     _index: np.ndarray | None = PrivateAttr(default=None)
 
     @model_validator(mode="after")

@@ -15,7 +15,7 @@ from typing import Annotated, Literal
 
 from pydantic import BeforeValidator, Field, model_validator
 
-from linkbudget.config.fields import InputProblem, integer
+from linkbudget.config.fields import InputProblem, Written, integer
 from linkbudget.config.ranges import RANGES
 from linkbudget.physics.splitter import ideal_split_loss_db, tap_loss_db
 from linkbudget.segments.base import NOTHING_AROUND, ExcessLossSpread, SegmentSpec, flat_over_wavelength
@@ -50,7 +50,8 @@ def split_ratio(value):
     return float(value)
 
 
-SplitRatio = Annotated[tuple[float, float] | float, BeforeValidator(split_ratio)]
+SplitRatio = Annotated[tuple[float, float] | float, BeforeValidator(split_ratio),
+                      Written("number or text", pattern=_RATIO.pattern)]
 
 
 class Splitter(SegmentSpec):
@@ -63,10 +64,14 @@ class Splitter(SegmentSpec):
     """
 
     kind: Literal["splitter"]
-    ports: integer(bounds=RANGES["splitter ports"]) | None = None
-    ratio: SplitRatio | None = None
-    port: integer(bounds=RANGES["splitter port"]) | None = None
-    excess_loss: ExcessLossSpread = Field(default="0 dB", validate_default=True)
+    ports: integer(bounds=RANGES["splitter ports"]) | None = Field(
+        None, description="Output ports of an equal 1xN split (or ratio).")
+    ratio: SplitRatio | None = Field(
+        None, description="A tap: shares a/b such as 2/98, or the followed port's fraction (or ports).")
+    port: integer(bounds=RANGES["splitter port"]) | None = Field(
+        None, description="Output port the link follows, from 1.")
+    excess_loss: ExcessLossSpread = Field(default="0 dB", validate_default=True,
+                                          description="Datasheet excess loss on top of the split.")
 
     @model_validator(mode="after")
     def _one_of_each(self):

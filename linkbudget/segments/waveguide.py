@@ -17,7 +17,7 @@ interface row.
 
 from typing import Literal
 
-from pydantic import model_validator
+from pydantic import Field, model_validator
 
 from linkbudget.config.fields import DielectricIndex, InputProblem, Strict, integer
 from linkbudget.config.ranges import RANGES
@@ -39,8 +39,8 @@ from linkbudget.segments.optics import OpticalSegment
 class CountedLoss(Strict):
     """``count`` identical features (bends, crossings), each with insertion ``loss``."""
 
-    count: integer(bounds=RANGES["feature count"])
-    loss: JointLossSpread
+    count: integer(bounds=RANGES["feature count"]) = Field(description="How many there are.")
+    loss: JointLossSpread = Field(description="Insertion loss of each.")
 
     def loss_db(self, case):
         """Total loss of the features [dB] for a budget case."""
@@ -50,8 +50,8 @@ class CountedLoss(Strict):
 class ModeSize(Strict):
     """A rectangular guide's mode: 1/e² intensity mode-field diameters along x and y."""
 
-    width: ModeFieldDiameterSpread
-    height: ModeFieldDiameterSpread
+    width: ModeFieldDiameterSpread = Field(description="Mode field diameter across the chip (x).")
+    height: ModeFieldDiameterSpread = Field(description="Mode field diameter out of the chip (y).")
 
 
 class Waveguide(OpticalSegment):
@@ -67,13 +67,16 @@ class Waveguide(OpticalSegment):
     """
 
     kind: Literal["waveguide"]
-    length: length_spread("waveguide length")
-    attenuation: attenuation_spread("waveguide attenuation") | None = None
-    effective_index: DielectricIndex | None = None
-    bends: CountedLoss | None = None
-    crossings: CountedLoss | None = None
-    mode_field_diameter: ModeFieldDiameterSpread | None = None
-    mode_size: ModeSize | None = None
+    length: length_spread("waveguide length") = Field(description="Length of the waveguide.")
+    attenuation: attenuation_spread("waveguide attenuation") | None = Field(
+        None, description="Propagation loss per length, e.g. 2 dB/cm (or effective_index).")
+    effective_index: DielectricIndex | None = Field(
+        None, description="Complex effective index of the mode; its κ gives the loss (or attenuation).")
+    bends: CountedLoss | None = Field(None, description="Bends {count, loss}.")
+    crossings: CountedLoss | None = Field(None, description="Crossings {count, loss}.")
+    mode_field_diameter: ModeFieldDiameterSpread | None = Field(
+        None, description="Mode field diameter of a circular mode (or mode_size).")
+    mode_size: ModeSize | None = Field(None, description="Mode field diameters {width, height} of a rectangular mode.")
 
     @model_validator(mode="after")
     def _one_of_each(self):

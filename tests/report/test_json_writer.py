@@ -51,6 +51,26 @@ def test_number_list_is_pythons_round_to_the_bit(decimals):
     assert [None if n is None else n.hex() for n in numbers] == [None if e is None else e.hex() for e in expected]
 
 
+@pytest.mark.parametrize("decimals", [json_report.DB_RESOLUTION_DECIMALS, json_report.FRACTION_RESOLUTION_DECIMALS,
+                                      json_report.WAVELENGTH_RESOLUTION_DECIMALS])
+def test_fixed_decimal_text_is_the_c_encoders_repr_of_the_rounded_values(decimals):
+    # In-range values of every scale the writer meets, with exact and near ties at the last
+    # decimal, zeros of both signs and values that round to zero, in slices of 1,000; a value
+    # that repr writes with an exponent (below 1e-4) leaves its slice to the C encoder.
+    rng = np.random.default_rng(7)
+    values = adversarial_values(decimals)
+    rounded = np.array([round(value, decimals) if np.isfinite(value) else np.nan for value in values.tolist()])
+    in_range = values[(np.abs(rounded) < 4000) & ((rounded == 0) | (np.abs(rounded) >= 1e-4))]
+    spread = rng.choice([-1.0, 1.0], 20_000) * rng.uniform(1e-4, 4.0, 20_000) * 10.0 ** rng.integers(0, 4, 20_000)
+    values = rng.permutation(np.concatenate([in_range, spread, [0.0, -0.0, -0.4 / 10**decimals]]))
+    for start in range(0, values.size, 1000):
+        part = values[start:start + 1000]
+        text = json_report._fixed_decimal_text(part, decimals, ",\n  ")
+        expected = json.dumps([round(value, decimals) + 0.0 for value in part.tolist()])[1:-1]
+        assert text == expected.replace(", ", ",\n  ")
+    assert json_report._fixed_decimal_text(np.append(values[:1000], 3e-5), decimals, ", ") is None
+
+
 @pytest.mark.parametrize("config", CONFIGS, ids=[path.stem for path in CONFIGS])
 def test_streamed_json_of_each_shipped_example_is_the_indented_dump(config):
     result = linkbudget.evaluate(linkbudget.load(config))

@@ -8,6 +8,7 @@ import pytest
 from numpy.testing import assert_allclose
 
 import linkbudget
+from linkbudget.config.json_schema import link_schema
 from linkbudget.engine import budget_rows
 from linkbudget.segments import registry
 from linkbudget.segments.cases import Draws
@@ -48,3 +49,13 @@ def test_new_kind_input_errors_are_placed():
     assert problem.path == ("chain", 0, "atenuation") and problem.mark is not None
     assert "did you mean 'attenuation'" in problem.hint
     assert np.isfinite(problem.mark.line)
+
+
+def test_new_kind_is_in_the_editor_schema():
+    schema = link_schema()
+    entry = schema["properties"]["chain"]["items"]
+    assert "attenuator" in entry["properties"]["kind"]["enum"]
+    (rule,) = [rule for rule in entry["allOf"] if rule["if"]["properties"]["kind"]["const"] == "attenuator"]
+    keys = schema["$defs"][rule["then"]["$ref"].rsplit("/", 1)[-1]]["properties"]
+    assert sorted(keys) == ["attenuation", "kind", "name"]
+    assert keys["attenuation"]["description"] == "Datasheet attenuation of the attenuator."

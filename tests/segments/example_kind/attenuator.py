@@ -6,6 +6,8 @@ the faces around it on like an element. This module and one line in the registry
 
 from typing import Literal
 
+from pydantic import Field
+
 from linkbudget.segments.base import NOTHING_AROUND, ElementLossSpread, SegmentSpec, flat_over_wavelength
 from linkbudget.segments.roles import PASSES
 
@@ -14,7 +16,7 @@ class Attenuator(SegmentSpec):
     """A fixed attenuator of datasheet ``attenuation`` (spread allowed)."""
 
     kind: Literal["attenuator"]
-    attenuation: ElementLossSpread
+    attenuation: ElementLossSpread = Field(description="Datasheet attenuation of the attenuator.")
 
     def role(self):
         return PASSES
