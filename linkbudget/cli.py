@@ -83,8 +83,9 @@ def _evaluated(path, allow_paths, required_margin_db):
         _fail_input(str(error))
 
 
-def _ratio_option(option, text):
-    """The dB value of a margin option (``None`` when not given); must be >= 0 dB."""
+def _ratio_option(option, text, *, what="a margin", lower=0.0, upper=None):
+    """The dB value of an option (``None`` when not given; ``what`` it is, for the message): at
+    least ``lower``, or at most ``upper`` when ``lower`` is ``None``."""
     if text is None:
         return None
     from linkbudget.units import UnitError, parse_quantity
@@ -93,9 +94,21 @@ def _ratio_option(option, text):
         value_db = parse_quantity(text, "ratio")
     except UnitError as error:
         _fail_input(f"{option}: {error}{format_hint(error.hint)}")
-    if not value_db >= 0:
-        _fail_input(f"{option}: a margin is >= 0 dB, got {text!r}")
+    if lower is not None and not value_db >= lower or upper is not None and not value_db <= upper:
+        bound = f">= {lower:g} dB" if lower is not None else f"<= {upper:g} dB"
+        _fail_input(f"{option}: {what} is {bound}, got {text!r}")
     return value_db
+
+
+def _hazard_level_option(text):
+    if text is None:
+        return None
+    from linkbudget.gates import hazard_level_option
+
+    try:
+        return hazard_level_option(text)
+    except ValueError as error:
+        _fail_input(f"--max-hazard-level: {error}")
 
 
 def _margin_override(text):
@@ -304,6 +317,18 @@ def check(
         Path | None, typer.Option("--junit", metavar="FILE", help="Also write JUnit XML: one test case per link.")
     ] = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --junit file.")] = False,
+    max_hazard_level: Annotated[str | None, typer.Option(
+        "--max-hazard-level", metavar="LEVEL",
+        help="Fail a link with a reachable point above this hazard level (1, 1M, 3R, 3B), by its estimate.")
+    ] = None,
+    max_back_reflection: Annotated[str | None, typer.Option(
+        "--max-back-reflection", metavar="DB",
+        help="Fail a link whose worst-case back reflection toward the source is above this, e.g. '-30dB' "
+             "(overrides each source's max_back_reflection, which is checked without it).")
+    ] = None,
+    max_pdl: Annotated[str | None, typer.Option(
+        "--max-pdl", metavar="DB", help="Fail a link whose polarization-dependent loss is above this, e.g. '0.5dB'.")
+    ] = None,
     allow_path: AllowPath = None,
     min_yield: Annotated[str | None, typer.Option(
         "--min-yield", metavar="YIELD",
@@ -314,18 +339,23 @@ def check(
     quiet: Quiet = False,
 ):
     """The CI gate: one line per link, exit 0 only if every link closes (or, with --min-yield,
-    reaches the yield).
+    reaches the yield) and passes the gates asked for.
 
-    Exit status 0 every link closes, 1 one does not, 2 an input is wrong, 3 a bug.
+    Exit status 0 every link passes, 1 one does not, 2 an input is wrong, 3 a bug.
     """
     import time
 
     from linkbudget.config import ConfigError
     from linkbudget.engine import evaluate
+    from linkbudget.gates import gate_failures
     from linkbudget.inputs import expand, load_argument
     from linkbudget.report import check as reports
 
     required = _margin_override(min_margin)
+    gates = {"max_hazard_level": _hazard_level_option(max_hazard_level),
+             "max_back_reflection_db": _ratio_option("--max-back-reflection", max_back_reflection, lower=None,
+                                                     upper=0.0, what="a back reflection, a fraction of the launch,"),
+             "max_pdl_db": _ratio_option("--max-pdl", max_pdl, what="a polarization-dependent loss")}
     least_yield = _yield_fraction(min_yield)
     outcomes, protected, loaded_links = [], [], []
     streaming = output is None and output_format is ReportFormat.text
@@ -342,7 +372,8 @@ def check(
                                                seconds=time.perf_counter() - started)
             else:
                 outcome = reports.CheckOutcome(item.name, result, seconds=time.perf_counter() - started,
-                                               least_yield=least_yield)
+                                               least_yield=least_yield,
+                                               failures=tuple(gate_failures(result, **gates)))
         except ConfigError as error:
             outcome = reports.CheckOutcome(item.name, error=str(error), seconds=time.perf_counter() - started)
         outcomes.append(outcome)
@@ -351,7 +382,7 @@ def check(
         if outcome.error is not None:
             typer.echo(outcome.error, err=True)
     if streaming and outcomes:
-        typer.echo(reports.check_summary(*reports.counts(outcomes)))
+        typer.echo(reports.summary_line(outcomes))
     broken_part_files = _checked_part_files(links, loaded_links, allow_path or (), to_stderr=not streaming)
     if not streaming:
         render = {ReportFormat.text: reports.render_lines, ReportFormat.markdown: reports.render_markdown,
@@ -359,8 +390,8 @@ def check(
         _write_or_print(render(outcomes), output, force, protected)
     if junit is not None:
         _write_or_print(reports.render_junit(outcomes), junit, force, protected)
-    _, _, fails, broken = reports.counts(outcomes)
-    raise typer.Exit(EXIT_INPUT if broken or broken_part_files else EXIT_FAILS if fails else EXIT_OK)
+    broken = reports.counts(outcomes)[3]
+    raise typer.Exit(EXIT_INPUT if broken or broken_part_files else EXIT_FAILS if reports.failed(outcomes) else EXIT_OK)
 
 
 def _write_or_print(text, output, force, protected):

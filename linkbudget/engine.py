@@ -52,6 +52,7 @@ class LinkResult:
     cautions: tuple = CAUTIONS
     statistics: object | None = None  # a linkbudget.statistics.Statistics, when trials were asked
     axis: str = "wavelength"  # how the link gives its wavelengths: wavelength, channels or band
+    review: object = None  # the reachable points' eye safety, back reflection and PDL (linkbudget.review)
 
     @cached_property
     def loss_db(self):
@@ -147,7 +148,8 @@ def _share_row(row_id, kind, origin, share, transmittance, **typed):
     for case, case_share in share.items():
         passed, after[case] = _pass(case_share, transmittance)
         losses[case] = loss_db_from_transmittance(passed)
-    return Row(row_id, kind, origin, losses, polarization_share=next(iter(share.values())), **typed), after
+    return Row(row_id, kind, origin, losses, polarization_share=next(iter(share.values())),
+               transmittance=transmittance, **typed), after
 
 
 class _RowNote(ValidityWarning):
@@ -299,15 +301,16 @@ def _multiple_reflections_row(carrier, downstream, exit_reflectance, share):
     the factor :func:`linkbudget.physics.thinfilm.round_trip_factor`, with τ the single-pass
     bulk transmittance. Returns the row and the shares after it.
     """
-    losses, after = {}, {}
+    losses, after, factors = {}, {}, {}
     for case, single_pass_db in carrier.single_pass_db.items():
         tau = transmittance_from_loss_db(single_pass_db)
-        factor = {pol: thinfilm.round_trip_factor(carrier.back_reflectance[pol], exit_reflectance[pol], tau)
-                  for pol in POLARIZATIONS}
-        passed, after[case] = _pass(share[case], factor)
+        factors[case] = {pol: thinfilm.round_trip_factor(carrier.back_reflectance[pol], exit_reflectance[pol], tau)
+                         for pol in POLARIZATIONS}
+        passed, after[case] = _pass(share[case], factors[case])
         losses[case] = loss_db_from_transmittance(passed)
     name = f"{carrier.side.name} multiple reflections"
-    return Row(name, REFLECTIONS_ROW, _origin(carrier.side.owner, downstream.owner), losses), after
+    return Row(name, REFLECTIONS_ROW, _origin(carrier.side.owner, downstream.owner), losses,
+               transmittance=next(iter(factors.values()))), after
 
 
 def _noted(notes, owner, function, *args):
@@ -567,4 +570,8 @@ def evaluate(link, *, required_margin_db=None):
     problem = _not_finite_problem(result, link)
     if problem is not None:
         raise ConfigError([problem])
-    return result
+    from linkbudget.review import review_link
+
+    reviewed = replace(result, review=review_link(link, result))
+    reviewed.__dict__.update(result.__dict__ | reviewed.__dict__)  # keep the cached arrays the review computed
+    return reviewed

@@ -58,6 +58,7 @@ DB_TOL = 1e-6  # dB: the JSON's 1e-9 dB rounding, far below
 CHECKED = {
     "quarry-uplink.yaml", "orchard-cwdm-ring.yaml", "flow-cell-probe.yaml", "rooftop-optical-bridge.yaml",
     "wafer-probe-splitter-card.yaml", "fish-tank-turbidity-probe.yaml", "estuary-cwdm-backhaul.yaml",
+    "vineyard-frost-fan-broadcast.yaml",
 }
 
 
@@ -293,3 +294,86 @@ def test_fish_tank_turbidity_probe_budget():
     assert loss["typ"][1] == pytest.approx(9.87, abs=0.01)
     check_budget("fish-tank-turbidity-probe.yaml", {"typ": -10.0, "worst": -12.0, "best": -9.0}, loss,
                  sensitivity_dbm=-35.0, required_margin_db=3.0, overload_dbm=-5.0)
+
+
+# --- eye safety, back reflection and PDL ---------------------------------------------------------
+
+def _oblique_face(pol, n_before, n_after, angle_rad, lam_nm):
+    """(R, T) of a bare face at an angle, by tmm's coherent transfer matrix (Byrnes 2016)."""
+    found = tmm.coh_tmm(pol, [n_before, n_after], [np.inf, np.inf], angle_rad, lam_nm)
+    return found["R"], found["T"]
+
+
+def test_vineyard_frost_fan_broadcast_budget_safety_back_reflection_and_pdl():
+    lam_nm, lam = 1550.0, 1550e-9
+    n_air, n_glass = air(lam_nm), silica(lam_nm)
+    split = 10 * math.log10(16)  # 12.0412 dB to every port
+    # datasheet rows: pigtail 2 m × 0.4 dB/km; hut panel; splitter excess; 2.2/2.4/2.6 km of cable at
+    # 0.25/0.3/0.4 dB/km; 3 splices; station connector; lead 3 m × 0.4 dB/km
+    typ = 0.0008 + 0.25 + split + 1.0 + 2.4 * 0.3 + 3 * 0.05 + 0.3 + 0.0012
+    worst = 0.0008 + 0.5 + split + 1.6 + 2.6 * 0.4 + 3 * 0.2 + 0.75 + 0.0012
+    best = 0.0008 + 0.1 + split + 0.6 + 2.2 * 0.25 + 3 * 0.02 + 0.15 + 0.0012
+    # faces: lead (n = 1.468) → air at normal incidence; air → silica at 30 deg and silica → air at
+    # the refracted angle, s and p followed through both (unpolarized light: the mean of the products)
+    inside = math.asin(n_air * math.sin(math.radians(30)) / n_glass)
+    first = {pol: _oblique_face(pol, n_air, n_glass, math.radians(30), lam_nm) for pol in ("s", "p")}
+    second = {pol: _oblique_face(pol, n_glass, n_air, inside, lam_nm) for pol in ("s", "p")}
+    window_t = 0.5 * sum(first[pol][1] * second[pol][1] for pol in ("s", "p"))
+    fibre_r, fibre_t = face(1.468, n_air)
+    faces = db(fibre_t) + db(window_t)
+    loss = {"typ": typ + faces, "worst": worst + faces, "best": best + faces}
+    _, data = shipped("vineyard-frost-fan-broadcast.yaml")
+    check_budget("vineyard-frost-fan-broadcast.yaml", {"typ": 13.0, "worst": 12.0, "best": 14.0}, loss,
+                 sensitivity_dbm=-28.0, required_margin_db=3.0, overload_dbm=3.0)
+
+    # eye safety (IEC 60825-1:2007 Table 4, from memory: 10 mW at 1550 nm; 3R = 50 mW): 14 dBm at the
+    # source output, beam unknown, so all of it counts: 25.1 mW, 4.0 dB above, 3R
+    points = {point["name"]: point for point in data["safety"]["points"]}
+    assert points["source output"]["margin_db"] == pytest.approx(10 * math.log10(10 / dbm_to_mw(14.0)), abs=DB_TOL)
+    assert points["source output"]["hazard_level"] == "3R"
+    # the hut panel: the pigtail's 10.4 um mode from its end; through 3.5 mm at 100 mm (the unaided eye,
+    # Table 10 from memory) w(z) = w0·√(1 + (z/z_R)²) (Kogelnik & Li) leaves a few per cent in the
+    # aperture, 1 − exp(−2a²/w²) (Siegman), within Class 1; through 7 mm at 14 mm almost all: 1M
+    hut_mw = dbm_to_mw(14.0 - 0.0008)
+    w0, z_r = 5.2e-6, math.pi * 5.2e-6**2 / lam
+    unaided = 1 - math.exp(-2 * 1.75e-3**2 / (w0**2 * (1 + (0.1 / z_r) ** 2)))
+    magnifier = 1 - math.exp(-2 * 3.5e-3**2 / (w0**2 * (1 + (14e-3 / z_r) ** 2)))
+    assert hut_mw * unaided < 10 < hut_mw * magnifier < 500
+    assert points["hut patch panel"]["hazard_level"] == "1M"
+    assert points["hut patch panel"]["margin_db"] == pytest.approx(10 * math.log10(10 / (hut_mw * magnifier)),
+                                                                   abs=DB_TOL)
+    spare_dbm = 14.0 - 0.0008 - 0.1 - split - 0.6
+    assert points["spare splitter port"]["power_dbm"] == pytest.approx(spare_dbm, abs=DB_TOL)
+    assert points["spare splitter port"]["margin_db"] == pytest.approx(10 - spare_dbm, abs=DB_TOL)
+    assert data["safety"]["above_hazard_level_1"] == ["source output", "hut patch panel"]
+    assert [point["name"] for point in data["safety"]["excluded"]] == ["head air space", "detector space"]
+
+    # back reflection: Σ share·R·T² (incoherent), T² the round trip through everything before each
+    def returned(hut_rl, station_rl, before):
+        t2 = [10 ** (-2 * value / 10) for value in before]
+        share_s = first["s"][1] / (first["s"][1] + first["p"][1])
+        window = (0.5 * (first["s"][0] + first["p"][0]) * t2[3]
+                  + (share_s * second["s"][0] + (1 - share_s) * second["p"][0]) * t2[4])
+        return 10 ** (-hut_rl / 10) * t2[0] + 10 ** (-station_rl / 10) * t2[1] + fibre_r * t2[2] + window
+
+    def before_rows(case):
+        upto_station = {"typ": typ - 0.3 - 0.0012, "best": best - 0.15 - 0.0012}[case]
+        to_window = {"typ": typ, "best": best}[case] + db(fibre_t)
+        return [0.0008, upto_station, upto_station + {"typ": 0.3, "best": 0.15}[case] + 0.0012, to_window,
+                to_window + db(0.5 * (first["s"][1] + first["p"][1]))]
+
+    typical = returned(55.0, 50.0, before_rows("typ"))
+    worst_case = returned(45.0, 40.0, before_rows("best"))
+    assert_allclose(data["back_reflection"]["level_db"]["typ"], [10 * math.log10(typical)], atol=DB_TOL)
+    assert_allclose(data["back_reflection"]["level_db"]["worst"], [10 * math.log10(worst_case)], atol=DB_TOL)
+    assert data["back_reflection"]["tolerated"] is (10 * math.log10(worst_case) <= -35.0)
+    assert data["back_reflection"]["largest"] == "station lead → head air space"
+
+    # PDL: the two window faces, s and p light alone
+    pdl = abs(db(first["s"][1] * second["s"][1]) - db(first["p"][1] * second["p"][1]))
+    assert_allclose(data["polarization_dependent_loss"]["link_pdl_db"], [pdl], atol=DB_TOL)
+    assert pdl == pytest.approx(0.252, abs=1e-3)
+
+
+def dbm_to_mw(power_dbm):
+    return 10 ** (power_dbm / 10)

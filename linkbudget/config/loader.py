@@ -13,6 +13,7 @@ from pydantic import BaseModel, ValidationError
 
 from linkbudget.config.fields import InputProblem
 from linkbudget.config.parts import PartLibrary, Written, is_part_use
+from linkbudget.config.reachable import reachable_problems
 from linkbudget.config.schema import LinkSpec
 from linkbudget.config.source import ConfigError, Mark, Problem, load_yaml
 from linkbudget.config.spectral import resolve_spectral
@@ -224,6 +225,8 @@ def parse_link(text, file="<string>", base_dir=None, allow_paths=(), *, reader=N
     if not problems:
         problems = [places[index].problem(problem.key_path, str(problem), problem.hint)
                     for index, problem in chain_problems(segments, wavelength_m)]
+        problems += [positions.problem(path, str(problem), problem.hint)
+                     for path, problem in reachable_problems(spec.reachable, segments)]
     if problems:
         raise ConfigError(problems)
     return Link(spec, tuple(segments), file, (*files.read_paths, *library.read_paths), positions, tuple(part_uses))

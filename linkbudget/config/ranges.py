@@ -138,6 +138,9 @@ RANGES = {range_.what: range_ for range_ in (
     Range("return loss", "`connector.return_loss`", 0.0, 100.0, "dB",
           f"a passive joint reflects no more than it receives (>= 0 dB); 100 dB is past any "
           f"measurement ({_COMMON})"),
+    Range("back-reflection tolerance", "`source.max_back_reflection`", -100.0, 0.0, "dB",
+          f"the light returning is a fraction of the launch power (<= 0 dB); -100 dB is past any "
+          f"measurement ({_COMMON})"),
     Range("fibre length", "`fiber.length`", 0.0, 40_000e3, "km",
           "the Earth's circumference (40000 km) bounds any fibre route",
           unusual=(Unusual(300e3, True, f"beyond an unrepeated span ({_COMMON}); amplification and dispersion "

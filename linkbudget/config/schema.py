@@ -7,6 +7,7 @@ from pydantic import Field, model_validator
 
 from linkbudget.config.fields import InputProblem, Strict, integer, quantity, spread
 from linkbudget.config.ranges import RANGES
+from linkbudget.config.reachable import Reachable
 from linkbudget.units import WAVELENGTH_EXAMPLE
 
 #: Most wavelengths a band may expand to.
@@ -53,11 +54,15 @@ class Band(Strict):
 
 class Source(Strict):
     """The transmitter: launch ``power`` into the first segment (a spread is allowed), and the
-    optional ``spectral_width`` (FWHM) that sets its coherence length."""
+    optional ``spectral_width`` (FWHM) that sets its coherence length, and the optional
+    ``max_back_reflection``: the most light returning toward it that it tolerates, relative to its
+    launch power (e.g. ``-30 dB``)."""
 
     power: spread("power", bounds=RANGES["source power"]) = Field(description="Power launched into the chain.")
     spectral_width: quantity("length", bounds=RANGES["spectral width"]) | None = Field(
         None, description="Spectral width (FWHM) of the source; sets its coherence length.")
+    max_back_reflection: quantity("ratio", bounds=RANGES["back-reflection tolerance"]) | None = Field(
+        None, description="Most light returning toward the source that it tolerates, relative to its launch.")
     name: str | None = Field(None, description="Name of the transmitter, for the reports.")
 
 
@@ -103,6 +108,8 @@ class LinkSpec(Strict):
     part_folders: list[str] | None = Field(
         None, description="Folders searched for parts after the link's own (see linkbudget.config.parts).")
     statistics: StatisticsSpec | None = Field(None, description="A statistical budget: {trials, seed}.")
+    reachable: Reachable | None = Field(
+        None, description="Points where a person can reach the light: added after segments, or excluded with a reason.")
 
     @model_validator(mode="after")
     def _one_axis(self):

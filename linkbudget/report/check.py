@@ -28,19 +28,21 @@ JUNIT_CLASS = "linkbudget.check"
 
 @dataclass(frozen=True)
 class CheckOutcome:
-    """One checked link: its name, and its result or the text of its input error."""
+    """One checked link: its name, and its result or the text of its input error, and the gates of
+    its review it fails (:func:`linkbudget.gates.gate_failures`, in words)."""
 
     name: str
     result: object = None
     error: str | None = None
     seconds: float = 0.0
     least_yield: float | None = None  # gate on the statistical budget's yield (``--min-yield``), not the worst case
+    failures: tuple = ()  # the review's gate failures (linkbudget.gates.gate_failures)
 
     @property
     def passes(self):
         if self.least_yield is not None:
-            return self.result.statistics.yield_fraction >= self.least_yield
-        return self.result.closes
+            return self.result.statistics.yield_fraction >= self.least_yield and not self.failures
+        return self.result.closes and not self.failures
 
     @property
     def status(self):
@@ -52,9 +54,12 @@ class CheckOutcome:
         if self.result is None:
             return []
         if self.least_yield is not None:
-            return [] if self.passes else ["yield below the least asked"]
-        return [reason for ok, reason in ((self.result.margin_ok, "margin short"),
-                                          (self.result.overload_ok, "overload exceeded")) if not ok]
+            reached = self.result.statistics.yield_fraction >= self.least_yield
+            budget = [] if reached else ["yield below the least asked"]
+        else:
+            budget = [reason for ok, reason in ((self.result.margin_ok, "margin short"),
+                                                (self.result.overload_ok, "overload exceeded")) if not ok]
+        return budget + list(self.failures)
 
     @property
     def worst_margin_db(self):
@@ -68,25 +73,42 @@ class CheckOutcome:
         if self.least_yield is not None:
             from linkbudget.report.statistics_table import yield_check_line
 
-            return yield_check_line(self.result, self.name, self.least_yield)
-        return check_line(self.result, self.name)
+            line = yield_check_line(self.result, self.name, self.least_yield)
+            return line + (f" ({', '.join(self.failures)})" if self.failures else "")
+        return check_line(self.result, self.name, self.failures)
 
 
 def counts(outcomes):
     """(links, close, do not close, input errors)."""
-    statuses = [outcome.status for outcome in outcomes]
-    return len(statuses), statuses.count(PASS), statuses.count(FAIL), statuses.count(ERROR)
+    results = [outcome.result for outcome in outcomes if outcome.result is not None]
+    closes = sum(result.closes for result in results)
+    return len(outcomes), closes, len(results) - closes, len(outcomes) - len(results)
+
+
+def gated(outcomes):
+    """How many links fail a gate of their review (eye safety, back reflection, PDL)."""
+    return sum(bool(outcome.failures) for outcome in outcomes)
+
+
+def failed(outcomes):
+    """How many links fail: do not close, or fail a gate."""
+    return sum(outcome.status == FAIL for outcome in outcomes)
+
+
+def summary_line(outcomes):
+    """The gate's last line."""
+    return check_summary(*counts(outcomes), gated(outcomes))
 
 
 def render_lines(outcomes):
     """The plain report: one line per link and the summary."""
-    return "\n".join([outcome.line for outcome in outcomes] + [check_summary(*counts(outcomes))]) + "\n"
+    return "\n".join([outcome.line for outcome in outcomes] + [summary_line(outcomes)]) + "\n"
 
 
 def render_markdown(outcomes):
     """A Markdown table of the links for a pull-request comment (errors in full, escaped)."""
     count, closes, fails, broken = counts(outcomes)
-    mark = "✅" if closes == count else "❌"
+    mark = "✅" if failed(outcomes) == broken == 0 else "❌"
     lines = [f"### {mark} linkbudget check: {closes} of {count} link(s) close", ""]
     rows = [[markdown_text(outcome.name), outcome.status.upper(),
              ", ".join(outcome.reasons) if outcome.result is not None
@@ -95,7 +117,7 @@ def render_markdown(outcomes):
              "" if outcome.result is None else fixed(outcome.result.required_margin_db)]
             for outcome in outcomes]
     lines += _table(["link", "status", "what fails", "worst margin dB", "required dB"], rows, text_columns=3)
-    lines += ["", check_summary(count, closes, fails, broken), ""]
+    lines += ["", summary_line(outcomes), ""]
     return "\n".join(lines)
 
 
@@ -119,7 +141,8 @@ def check_dict(outcomes, required_margin_db=None):
             "min_margin_db": None if required_margin_db is None else _number(required_margin_db,
                                                                               DB_RESOLUTION_DECIMALS),
             "links": [entry(outcome) for outcome in outcomes],
-            "summary": {"links": count, "close": closes, "do_not_close": fails, "input_errors": broken}}
+            "summary": {"links": count, "close": closes, "do_not_close": fails, "input_errors": broken,
+                        "fail_a_gate": gated(outcomes)}}
 
 
 def render_json(outcomes, required_margin_db=None):
@@ -141,7 +164,8 @@ def render_junit(outcomes):
     does not load."""
     import xml.etree.ElementTree as ElementTree
 
-    count, _, fails, broken = counts(outcomes)
+    count, _, _, broken = counts(outcomes)
+    fails = failed(outcomes)
     total_seconds = sum(outcome.seconds for outcome in outcomes)
     suites = ElementTree.Element("testsuites", name="linkbudget", tests=str(count), failures=str(fails),
                                  errors=str(broken), time=f"{total_seconds:.3f}")
@@ -152,7 +176,8 @@ def render_junit(outcomes):
         case = ElementTree.SubElement(suite, "testcase", classname=JUNIT_CLASS, name=escaped(outcome.name),
                                       time=f"{outcome.seconds:.3f}")
         if outcome.status == FAIL:
-            failure = ElementTree.SubElement(case, "failure", type="link does not close",
+            failure = ElementTree.SubElement(case, "failure", type="link does not close" if not outcome.result.closes
+                                             else "link fails a gate",
                                              message=_xml_safe(outcome.line))
             failure.text = _xml_safe(outcome.line)
         elif outcome.status == ERROR:

@@ -15,7 +15,10 @@ import hashlib
 import html
 from dataclasses import dataclass
 
+import numpy as np
+
 from linkbudget import __version__
+from linkbudget.report import review_text as words
 from linkbudget.report import summary
 from linkbudget.report.markdown import shown_wavelengths
 from linkbudget.report.summary import db_text
@@ -40,6 +43,7 @@ td.note { color: #444; font-size: 0.85rem; }
 figure { margin: 1rem 0; }
 figure svg { max-width: 100%; height: auto; }
 .cautions { border: 2px solid #b35806; padding: 0.5rem 1rem; }
+li.alarm { font-weight: bold; }
 footer { margin-top: 2rem; color: #444; font-size: 0.85rem; overflow-wrap: anywhere; }
 """
 
@@ -132,6 +136,32 @@ def margin_section(result):
     return Section("Margin per wavelength", "margin-section", intro + table)
 
 
+def _hazard_cell(item):
+    """A point's hazard level, marked where it is above hazard level 1 (or not assessed)."""
+    return f'<span class="status-{"short" if item.above_level_1 else "ok"}">{text(item.hazard_level or "n/a")}</span>'
+
+
+def review_section(result):
+    """Eye safety at the reachable points, back reflection and polarization-dependent loss (the
+    review's estimates, in the words the terminal and Markdown use); ``None`` without a review."""
+    if result.review is None:
+        return None
+    rows = [[text(item.point.name), text(item.point.what), text(words.assessed_at(result, item)),
+             text(words.milliwatt_text(item.power_w)), text(words.milliwatt_text(item.class1_limit_w)),
+             db_text(item.margin_db, True) if np.isfinite(item.margin_db) else "n/a",
+             "known" if item.beam_known else "unknown",
+             _hazard_cell(item)]
+            for item in result.review.assessments]
+    table = _table(["point", "what", "wavelength", "highest power mW", "Class 1 limit mW", "margin dB", "beam",
+                    "hazard level"], rows, table_id="safety", text_columns=3)
+    sentences = [*words.safety_sentences(result, str), *words.back_reflection_sentences(result, str),
+                 (words.polarization_sentence(result, str), False)]
+    items = "".join(f'<li class="{"alarm" if alarm else "fact"}">{text(sentence)}</li>'
+                    for sentence, alarm in sentences)
+    body = f"{table}\n<p>{text(words.LIMITS_SENTENCE)}</p>\n<ul>{items}</ul>"
+    return Section("Eye safety, back reflection and polarization (estimates)", "review-section", body)
+
+
 def plots_section(panels, *, heading="Plots", section_id="plots-section", salt="linkbudget"):
     """The diagrams (:class:`linkbudget.report.plots.Panel` s) as inline SVG, each in a figure
     with its caption; without matplotlib, a line saying how to get them. ``salt`` starts the SVG
@@ -211,6 +241,7 @@ def render(result, *, input_sha256, sections=()):
     """
     from linkbudget.report.plots import run_panels
 
-    parts = [verdict_section(result), budget_section(result), margin_section(result), *sections,
-             plots_section(run_panels(result)), cautions_section(result.cautions)]
+    review = review_section(result)
+    parts = [verdict_section(result), budget_section(result), margin_section(result), *([review] if review else []),
+             *sections, plots_section(run_panels(result)), cautions_section(result.cautions)]
     return page(result.title, parts, provenance({result.file: input_sha256}))

@@ -117,6 +117,7 @@ def _row_document(result, index):
         **_present({"loss_parts_db": _values(row.loss_parts_db),
                     "geometric_estimate_db": _values(row.geometric_estimate_db),
                     "reflectance": _values(row.reflectance, FRACTION_RESOLUTION_DECIMALS),
+                    "reflectance_high": _values(row.reflectance_high, FRACTION_RESOLUTION_DECIMALS),
                     "polarization_share": _values(row.polarization_share, FRACTION_RESOLUTION_DECIMALS),
                     "absorptance": _values(row.absorptance, FRACTION_RESOLUTION_DECIMALS),
                     "facts": list(row.facts), "notes": list(row.notes)}),
@@ -154,6 +155,7 @@ def _document(result):
         "overload_ok": result.overload_ok,
         "closes": result.closes,
         "notes": list(result.notes),
+        **_review_entries(result),
         "cautions": list(result.cautions),
         **({} if result.statistics is None else {"statistics": _statistics_document(result)}),
     }
@@ -185,6 +187,27 @@ def _statistics_document(result):
         "contributions": [{"id": item.row_id, "name": item.name, "std_db": _Numbers(item.std_db),
                            "variance_share": fraction(item.share)} for item in stats.contributions],
     }
+
+
+def _review_numbers(values, *, wavelength=False, fraction=False):
+    decimals = (WAVELENGTH_RESOLUTION_DECIMALS if wavelength else FRACTION_RESOLUTION_DECIMALS if fraction
+                else DB_RESOLUTION_DECIMALS)
+    return _Numbers(values, decimals)
+
+
+def _review_entries(result):
+    """The ``safety``, ``back_reflection`` and ``polarization_dependent_loss`` objects (none for a
+    result built without its review)."""
+    if result.review is None:
+        return {}
+    from linkbudget.report.review_json import back_reflection_entry, polarization_loss_entry, safety_entry
+
+    def number(value):
+        return _number(value, DB_RESOLUTION_DECIMALS)
+
+    return {"safety": safety_entry(result, _review_numbers, number),
+            "back_reflection": back_reflection_entry(result, _review_numbers, number),
+            "polarization_dependent_loss": polarization_loss_entry(result, _review_numbers)}
 
 
 def _plain(value):

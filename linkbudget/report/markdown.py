@@ -2,6 +2,7 @@
 
 import numpy as np
 
+from linkbudget.report.review_markdown import review_lines
 from linkbudget.report.summary import (
     db_text,
     margin_sentence,
@@ -86,6 +87,7 @@ def render(result):
          for i, wavelength in ((i, result.wavelength_m[i]) for i in shown)])
     lines += statistics_lines(result)
     lines += [""] + [f"- note: {markdown_text(note)}" for note in result.notes]
+    lines += review_lines(result, _table, markdown_text)
     lines += ["", "> **Laser safety.** " + " ".join(result.cautions), ""]
     return "\n".join(lines)
 

@@ -4,6 +4,7 @@ import math
 
 import numpy as np
 
+from linkbudget.polarization_loss import row_losses_db
 from linkbudget.segments.rows import SEGMENT_ROW
 from linkbudget.text import escaped, nm
 
@@ -91,6 +92,10 @@ def row_note(row, index):
         notes.append(parts)
     if row.kind == SEGMENT_ROW and row.reflectance is not None:
         notes.append(f"return loss {fixed(row.return_loss_db[index], 1)} dB")
+    by_polarization = row_losses_db(row)
+    if by_polarization is not None:
+        notes.append(f"PDL {db_text(abs(by_polarization['s'][index] - by_polarization['p'][index]))} dB "
+                     f"(s {db_text(by_polarization['s'][index])}, p {db_text(by_polarization['p'][index])})")
     notes.extend(row.facts)  # the user's own words among them: each format escapes the whole note
     if row.part is not None:
         notes.append(f"part {row.part.name} ({row.part.file})")
@@ -113,11 +118,12 @@ def wavelength_status(result):
     return words[short.astype(int) + 2 * over.astype(int)]
 
 
-def check_line(result, path):
-    """The CI gate's line for one link: PASS or FAIL, its worst-case margin and what fails."""
+def check_line(result, path, failures=()):
+    """The CI gate's line for one link: PASS or FAIL, its worst-case margin and what fails (with
+    the review's ``failures``, :func:`linkbudget.gates.gate_failures`)."""
     reasons = [reason for ok, reason in ((result.margin_ok, "margin short"),
-                                          (result.overload_ok, "overload exceeded")) if not ok]
-    word = "PASS " if result.closes else "FAIL "
+                                          (result.overload_ok, "overload exceeded")) if not ok] + list(failures)
+    word = "PASS " if not reasons else "FAIL "
     worst = float(result.margin_db["worst"].min())
     line = (f"{word}  {escaped(path)}: worst-case margin {fixed(worst, signed=True)} dB, "
             f"required {fixed(result.required_margin_db)} dB")
@@ -129,6 +135,7 @@ def check_error_line(path):
     return f"ERROR  {escaped(path)}: input error"
 
 
-def check_summary(count, closes, fails, broken):
-    """The CI gate's last line."""
-    return f"{count} link(s): {closes} close, {fails} do not close, {broken} with input errors"
+def check_summary(count, closes, fails, broken, gated=0):
+    """The CI gate's last line; ``gated`` links failed a gate of the review (said when any did)."""
+    gates = f", {gated} fail a safety, back-reflection or PDL gate" if gated else ""
+    return f"{count} link(s): {closes} close, {fails} do not close{gates}, {broken} with input errors"

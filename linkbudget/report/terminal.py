@@ -11,6 +11,7 @@ from rich.panel import Panel
 from rich.table import Table
 from rich.text import Text
 
+from linkbudget.report.review_terminal import review_parts
 from linkbudget.report.statistics_table import statistics_section
 from linkbudget.report.summary import (
     db_text,
@@ -177,4 +178,5 @@ def render(result):
         parts.append(Text(f"(the table shows the wavelength with the least worst-case margin; "
                           f"the link carries {result.wavelength_m.size})", style="dim"))
     notes = [Text(f"note: {escaped(note)}", style="yellow") for note in result.notes]
-    return Group(*parts, margin_part(result), summary, *statistics_section(result), *notes, cautions)
+    return Group(*parts, margin_part(result), summary, *statistics_section(result), *notes, *review_parts(result),
+                 cautions)

@@ -16,10 +16,10 @@ from linkbudget.config.fields import (
     DielectricIndex,
     InputProblem,
     integer,
-    quantity,
+    spread,
 )
 from linkbudget.config.ranges import RANGES
-from linkbudget.config.spectral import spectral, typical
+from linkbudget.config.spectral import spectral
 from linkbudget.physics.decibel import transmittance_from_loss_db
 from linkbudget.segments.base import (
     NOTHING_AROUND,
@@ -146,7 +146,7 @@ class _Joint(SegmentSpec):
         """The datasheet loss (with the geometric estimate beside it, when the geometry is given
         too), else the loss from the geometry."""
         geometric = self.geometric_losses_db(wavelength_m, cases, around) if self.geometric else None
-        typed = {"reflectance": self.reflectance(wavelength_m)}
+        typed = {"reflectance": self.reflectance(wavelength_m), "reflectance_high": self.reflectance_high(wavelength_m)}
         if self.loss is None:
             return segment_row(self, geometric, **typed)
         datasheet = {case.name: self.loss_db(wavelength_m, case) for case in cases}
@@ -154,6 +154,10 @@ class _Joint(SegmentSpec):
 
     def reflectance(self, wavelength_m):
         """polarization -> the power fraction the joint sends back toward the source, or ``None``."""
+        return None
+
+    def reflectance_high(self, wavelength_m):
+        """polarization -> the highest such fraction its spread allows, where it differs, or ``None``."""
         return None
 
     def loss_db(self, wavelength_m, case, around=NOTHING_AROUND):
@@ -184,16 +188,27 @@ class Connector(_Counted):
 
     kind: Literal["connector"]
     count: integer(bounds=RANGES["connector count"]) = Field(1, description="Number of identical mated pairs.")
-    return_loss: spectral(quantity("ratio", bounds=RANGES["return loss"])) | None = Field(
-        None, description="Datasheet return loss of the mated pair.")
+    return_loss: spectral(spread("ratio", bounds=RANGES["return loss"])) | None = Field(
+        None, description="Datasheet return loss of the mated pair (spread allowed: its low end is the worst case).")
 
     def reflectance(self, wavelength_m):
-        """The datasheet return loss RL as the reflectance R = 10^(−RL/10), the same for s and p
-        (a datasheet states one value)."""
+        """The datasheet return loss RL (its typical value) as the reflectance R = 10^(−RL/10),
+        the same for s and p (a datasheet states one value)."""
         if self.return_loss is None:
             return None
-        reflected = flat_over_wavelength(transmittance_from_loss_db(typical(self.return_loss)), wavelength_m)
-        return {pol: reflected for pol in POLARIZATIONS}
+        return _reflectance_of(self.return_loss.typ_value, wavelength_m)
+
+    def reflectance_high(self, wavelength_m):
+        """The reflectance of the return loss's low end (its bad end), where it is a spread."""
+        if self.return_loss is None or np.array_equal(self.return_loss.low, self.return_loss.typ_value):
+            return None
+        return _reflectance_of(self.return_loss.low, wavelength_m)
+
+
+def _reflectance_of(return_loss_db, wavelength_m):
+    """polarization -> R = 10^(−RL/10) over the wavelength axis."""
+    reflected = flat_over_wavelength(transmittance_from_loss_db(return_loss_db), wavelength_m)
+    return {pol: reflected for pol in POLARIZATIONS}
 
 
 class Splice(_Counted):

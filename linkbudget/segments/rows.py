@@ -51,11 +51,17 @@ class Row:
     reflectance : dict or None
         polarization (:data:`POLARIZATIONS`) -> fraction of the power reaching the row that it
         sends back toward the source: a face's or coating's, or a connector's return loss.
+    reflectance_high : dict or None
+        polarization -> the highest reflectance the row's spread allows (a connector's return loss
+        at its low end), where it differs from ``reflectance``.
     polarization_share : dict or None
         polarization -> power share of the light reaching the row (the typical case), where the
         row's loss depends on polarization.
     absorptance : dict or None
         polarization -> fraction absorbed (a coating).
+    transmittance : dict or None
+        polarization -> the row's power transmittance (its factor, for a multiple-reflection sum;
+        the typical case), where it depends on polarization: a face, a coating.
     loss_parts_db : dict
         part -> case name -> array: the named parts the loss is the sum of (may be empty).
     geometric_estimate_db : dict or None
@@ -74,8 +80,10 @@ class Row:
     loss_db: dict
     segment_kind: str | None = None
     reflectance: dict | None = None
+    reflectance_high: dict | None = None
     polarization_share: dict | None = None
     absorptance: dict | None = None
+    transmittance: dict | None = None
     loss_parts_db: dict = field(default_factory=dict)
     geometric_estimate_db: dict | None = None
     facts: tuple = ()

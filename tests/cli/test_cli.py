@@ -112,17 +112,18 @@ def test_run_example_markdown_parses(config, cli):
     assert result.exit_code == (0 if expected.closes else 1)
     heading = next(line for line in result.stdout.splitlines() if line.startswith("#"))
     assert ("DOES NOT CLOSE" if not expected.closes else "CLOSES") in heading
-    budget, margins = markdown_tables(result.stdout)
+    budget, margins, safety = markdown_tables(result.stdout)
     assert len(budget) - 1 == len(expected.rows)
     assert [row[0] for row in budget[1:]] == [row.name for row in expected.rows]
     assert len(margins) - 1 == expected.wavelength_m.size
+    assert len(safety) - 1 == len(expected.review.assessments)  # the reachable points' table
     assert "Laser safety" in result.stdout.strip().splitlines()[-1]
 
 
 def test_run_markdown_keeps_pipes_in_names_inside_their_cell(cli, write_link, minimal_link):
     result = cli("run", write_link(minimal_link.replace("name: panel", "name: 'panel | rear'")), "-f", "markdown")
     assert result.exit_code == 0
-    budget, _ = markdown_tables(result.stdout)
+    budget, *_ = markdown_tables(result.stdout)
     assert [row[0] for row in budget[1:]] == ["trunk", "panel | rear"]
 
 

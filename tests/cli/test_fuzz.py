@@ -60,7 +60,16 @@ LONGEST_TEXT = 10_000
 #: ``null`` is documented for these keys of the JSON result (docs/json-result.md); ``*`` is any
 #: list index.
 NULLABLE = {("receiver", "overload_dbm"), ("receiver", "name"), ("source", "name"), ("description",),
-            ("rows", "*", "segment_kind")}
+            ("rows", "*", "segment_kind"),
+            # documented in docs/json-result.md: a point before any row, a wavelength outside the limits'
+            # band, no power at a point (its limit and margin unbounded), nothing reflecting, no tolerance
+            ("safety", "points", "*", "after_row"), ("safety", "points", "*", "hazard_level"),
+            ("safety", "points", "*", "class1_limit_dbm"), ("safety", "points", "*", "margin_db"),
+            ("safety", "points", "*", "power_dbm"),
+            ("back_reflection", "tolerance_db"), ("back_reflection", "largest"),
+            ("back_reflection", "level_db", "typ", "*"), ("back_reflection", "level_db", "worst", "*"),
+            ("back_reflection", "reflections", "*", "contribution_db", "typ", "*"),
+            ("back_reflection", "reflections", "*", "contribution_db", "worst", "*")}
 
 #: The links the mutants start from: the shipped examples, and a link with every segment kind once.
 BASES = [*CONFIGS, EVERY_KIND]

@@ -68,8 +68,9 @@ def readme_links():
     for line, document in readme_yaml_blocks():
         if is_material_file(document) or is_part_file(document):
             continue
-        link = ({**MINIMAL_LINK, "chain": document} if isinstance(document, list)
-                else {**MINIMAL_LINK, **document} if document.keys() == {"chain"} else document)
+        link = {**MINIMAL_LINK, "chain": document} if isinstance(document, list) else (
+            document if "title" in document else {**MINIMAL_LINK, "chain": [{"kind": "element", "loss": "1 dB"}],
+                                                  **document})  # top-level keys shown alone (`reachable:`)
         links.append((f"README.md:{line}", link))
     return links
 

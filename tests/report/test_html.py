@@ -5,6 +5,7 @@ the panel in the worst case is -5 - 2 x 0.6 - 0.75 = -6.95 dBm.
 """
 
 import hashlib
+import math
 import re
 import subprocess
 import sys
@@ -116,3 +117,20 @@ def test_run_format_html_without_the_extra_says_so_in_the_page(write_link):
     assert done.returncode == 0, done.stderr
     assert '<p class="missing-plots">plots need matplotlib: pip install &quot;linkbudget[plot]&quot;</p>' in done.stdout
     assert "<svg" not in done.stdout and "CLOSES" in done.stdout
+
+
+def test_page_shows_the_review_of_reachable_points_escaped(write_link):
+    # A 1550 nm source of up to 14 dBm (10^1.4 = 25.1 mW) straight into a connector, then 20 dB:
+    # the source output and the connector hold 25.1 mW against the 10 mW Class 1 limit above
+    # 1400 nm (IEC 60825-1:2007, from memory), 10·log10(25.1/10) = 4.00 dB over; the receiver
+    # input holds 0.251 mW.
+    path = write_link("title: review page\nwavelength: 1550 nm\nsource:\n  power: {min: 10 dBm, max: 14 dBm}\n"
+                      "receiver:\n  sensitivity: -30 dBm\nchain:\n"
+                      f"  - name: '{HOSTILE}'\n    kind: connector\n    loss: 0 dB\n"
+                      "  - name: pad\n    kind: element\n    loss: 20 dB\n")
+    page = page_of(path)
+    section = page[page.index('id="review-section"'):page.index("</section>", page.index('id="review-section"'))]
+    assert HOSTILE not in page and html.text(HOSTILE) in section
+    assert f"{10 ** 1.4:.1f}" in section and f"-{10 * math.log10(10 ** 1.4 / 10):.2f}" in section
+    assert f"{10 ** 1.4 / 100:.3f}" in section
+    assert section.count('class="status-short"') == 2 and fetching_markup(page) == []
