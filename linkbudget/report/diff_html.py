@@ -25,10 +25,14 @@ from linkbudget.text import nm
 
 
 def diff_panels(diff):
-    """The diagrams of both revisions on shared axes, each named by its side's label."""
+    """The diagrams of both revisions on shared axes, each named by its side's label; a renamed
+    segment at one place, under its new name."""
+    from linkbudget.diff import RENAMED
     from linkbudget.report.plots import comparison_panels
 
-    return comparison_panels(diff.old.result, diff.new.result, labels=(diff.old.label, diff.new.label))
+    renames = {change.old_name: change.new_name for change in diff.segments if change.status == RENAMED}
+    return comparison_panels(diff.old.result, diff.new.result, labels=(diff.old.label, diff.new.label),
+                             renames=renames)
 
 
 def _verdict_span(result, element_id):

@@ -42,10 +42,11 @@ def test_diff_plot_holds_both_revisions_hand_summed_powers():
     for number, (typ, worst) in enumerate(((OLD_TYP_DBM, OLD_WORST_DBM), (NEW_TYP_DBM, NEW_WORST_DBM))):
         assert_allclose(line(levels, f"power-{number}-typ").get_ydata(), typ, atol=1e-9)
         assert_allclose(line(levels, f"power-{number}-worst").get_ydata(), worst, atol=1e-9)
-    # renamed and replaced segments take their own places on the shared axis
+    # the renamed panel shares its place with the bulkhead; the removed and the added element have their own
     assert [label.get_text() for label in levels.get_xticklabels()] == [
-        "source", "trunk", "panel", "bulkhead", "splices", "old filter", "ageing allowance"]
-    assert_allclose(line(levels, "power-1-worst").get_xdata(), [0, 1, 3, 4, 6])
+        "source", "trunk", "bulkhead", "splices", "old filter", "ageing allowance"]
+    assert_allclose(line(levels, "power-0-worst").get_xdata(), [0, 1, 2, 3, 4])
+    assert_allclose(line(levels, "power-1-worst").get_xdata(), [0, 1, 2, 3, 5])
     legend = [entry.get_text() for entry in levels.get_legend().get_texts()]
     assert "old.yaml: worst case" in legend and "new.yaml: worst case" in legend
 
