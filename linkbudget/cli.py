@@ -255,7 +255,9 @@ def run(
     result = _with_trials(loaded, result, trials, seed, quiet)
     protected = [link, *loaded.referenced_files]
     if plot is not None:
-        _write_plot(result, plot, force, protected)
+        from linkbudget.report.plots import run_panels
+
+        _write_plot(run_panels(result), plot, force, protected)
     _emit(result, output_format, output, force, protected, link)
     raise typer.Exit(EXIT_OK if result.closes else EXIT_FAILS)
 
@@ -276,10 +278,11 @@ def _check_plot_option(plot, output):
         _fail_input(f"--plot: {missing}")
 
 
-def _write_plot(result, plot, force, protected):
-    from linkbudget.report.plots import figure, plot_bytes, run_panels
+def _write_plot(panels, plot, force, protected):
+    """The diagrams ``panels`` as the PNG or SVG file ``plot``, written atomically."""
+    from linkbudget.report.plots import figure, plot_bytes
 
-    _write_output(plot, plot_bytes(figure(run_panels(result)), plot.suffix[1:].lower()), force, protected)
+    _write_output(plot, plot_bytes(figure(panels), plot.suffix[1:].lower()), force, protected)
 
 
 def _emit(result, output_format, output, force, protected, link=None):
@@ -294,11 +297,20 @@ def _emit(result, output_format, output, force, protected, link=None):
 
 
 class ReportFormat(str, Enum):
-    """The formats of ``check`` and ``diff``."""
+    """The formats of ``check``."""
 
     text = "text"
     json = "json"
     markdown = "markdown"
+
+
+class DiffFormat(str, Enum):
+    """The formats of ``diff``."""
+
+    text = "text"
+    json = "json"
+    markdown = "markdown"
+    html = "html"
 
 
 @app.command(cls=_Command)
@@ -419,11 +431,15 @@ def diff(
         metavar="NEW|REV1..REV2", help="The new link file, or two git revisions of LINK.")] = None,
     against: Annotated[str | None, typer.Option(
         "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
-    output_format: Annotated[ReportFormat, typer.Option("--format", "-f", help="Output format.")] = ReportFormat.text,
+    output_format: Annotated[DiffFormat, typer.Option("--format", "-f", help="Output format.")] = DiffFormat.text,
     output: Annotated[
         Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
     ] = None,
-    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
+    force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
+    plot: Annotated[Path | None, typer.Option(
+        "--plot", metavar="FILE",
+        help="Also draw both revisions' power along the chain on one diagram as FILE.png or FILE.svg; "
+             'needs the plot extra: pip install "linkbudget[plot]".')] = None,
     max_margin_loss: Annotated[str | None, typer.Option(
         "--max-margin-loss", metavar="DB",
         help="Exit 1 when the worst-case margin falls by more than this at any wavelength, e.g. '0.5dB'.")] = None,
@@ -439,30 +455,39 @@ def diff(
     from linkbudget.gitread import GitError
 
     max_loss_db = _ratio_option("--max-margin-loss", max_margin_loss)
+    _check_plot_option(plot, output)
     try:
         old, new = load_sides(first, second, against=against, allow_paths=tuple(allow_path or ()))
     except (GitError, ConfigError) as error:
         _fail_input(str(error))
     found = compare(old, new)
-    if output is None and output_format is ReportFormat.text:
+    protected = [side.link_path for side in (old, new) if side.link_path] + [
+        path for side in (old, new) for path in side.link.referenced_files]
+    if plot is not None:
+        from linkbudget.report.diff_html import diff_panels
+
+        _write_plot(diff_panels(found), plot, force, protected)
+    if output is None and output_format is DiffFormat.text:
         from rich.console import Console
 
         from linkbudget.report.diff_text import render_terminal
 
         Console().print(render_terminal(found, max_loss_db))
     else:
-        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force,
-                        [side.link_path for side in (old, new) if side.link_path] + [
-                            path for side in (old, new) for path in side.link.referenced_files])
+        _write_or_print(_diff_text(found, output_format, max_loss_db), output, force, protected)
     raise typer.Exit(EXIT_FAILS if max_loss_db is not None and found.margin_loss_exceeds(max_loss_db) else EXIT_OK)
 
 
 def _diff_text(found, output_format, max_loss_db):
-    if output_format is ReportFormat.json:
+    if output_format is DiffFormat.html:
+        from linkbudget.report.diff_html import render
+
+        return render(found, max_loss_db)
+    if output_format is DiffFormat.json:
         from linkbudget.report.diff_json import diff_json_chunks
 
         return diff_json_chunks(found, max_loss_db)
-    if output_format is ReportFormat.markdown:
+    if output_format is DiffFormat.markdown:
         from linkbudget.report.diff_text import render_markdown
 
         return render_markdown(found, max_loss_db)

@@ -20,6 +20,7 @@ Matching rules
 A change is new minus old: a loss change > 0 loses more; a margin change < 0 lost margin.
 """
 
+import hashlib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -43,13 +44,15 @@ SAME_LOSS_DB = 1e-9
 
 @dataclass(frozen=True)
 class Side:
-    """One revision of a link: its name in messages, written data, loaded link and result."""
+    """One revision of a link: its name in messages, written data, loaded link and result, and the
+    SHA-256 (hex) of the link's text as read (of the file, or of the file at a git revision)."""
 
     label: str
     data: dict
     link: object
     result: object
     link_path: Path | None = None  # the file of the machine read, if any (never overwritten)
+    text_sha256: str | None = None
 
 
 def load_side(path, *, reader, label=None):
@@ -70,7 +73,8 @@ def load_side(path, *, reader, label=None):
         raise ConfigError([Problem(label or str(path), None, (), str(error), error.hint)]) from None
     link = parse_link(source.text, source.name, Path(str(path)).parent, reader=reader)
     data, _ = load_yaml(source.text, source.name)
-    return Side(label or source.name, data, link, evaluate(link), source.path)
+    return Side(label or source.name, data, link, evaluate(link), source.path,
+                hashlib.sha256(source.text.encode("utf-8")).hexdigest())
 
 
 #: Between the two revisions of a range.

@@ -53,6 +53,12 @@ def shown_wavelengths(diff, limit):
     return sorted(kept)
 
 
+def shown_sentence(shown_count, count):
+    """Which wavelengths a bounded margin table lists (:func:`shown_wavelengths`)."""
+    return (f"{shown_count} of {count} wavelengths shown: both ends, where the margin fell most and least, "
+            "and evenly spaced points.")
+
+
 def change_text(value_db):
     """A signed change [dB]: ``+0.50``, ``-1.20``; ``n/a`` when either side is blocked."""
     value_db = float(value_db)
@@ -151,12 +157,14 @@ def margin_cells(diff, index):
             change_text(diff.margin_change_db["worst"][index])]
 
 
-def _listed(changes):
+def listed_changes(changes):
+    """The changed ones of ``changes``, at most :data:`MAX_LISTED_SEGMENTS`, and how many more changed."""
     changed = [change for change in changes if change.status != UNCHANGED]
     return changed[:MAX_LISTED_SEGMENTS], len(changed) - MAX_LISTED_SEGMENTS
 
 
-def _summary_lines(diff, max_margin_loss_db):
+def summary_lines(diff, max_margin_loss_db):
+    """The sentences on verdict, margin, wavelengths only one side carries and the gate."""
     lines = [verdict_sentence(diff), margin_sentence(diff), *wavelength_lines(diff)]
     gate = gate_sentence(diff, max_margin_loss_db)
     return lines + ([gate] if gate else [])
@@ -183,14 +191,14 @@ def render_markdown(diff, max_margin_loss_db=None, *, max_chars=MAX_MARKDOWN_CHA
     title = markdown_text(diff.new.result.title)
     lines = [f"### linkbudget diff: {title}", "",
              f"{markdown_text(diff.old.label)} → {markdown_text(diff.new.label)}", ""]
-    lines += [f"- {markdown_text(line)}" for line in _summary_lines(diff, max_margin_loss_db)]
+    lines += [f"- {markdown_text(line)}" for line in summary_lines(diff, max_margin_loss_db)]
     if diff.link_keys:
         lines += ["", "Link keys changed:", ""]
         lines += _table(["key", "old", "new"], [[markdown_text(key.path), markdown_text(key.old or "(none)"),
                                                  markdown_text(key.new or "(none)")]
                                                 for key in diff.link_keys[:MAX_LISTED_KEYS * 4]], text_columns=3)
     for what, changes in (("Segments", diff.segments), ("Faces between media", diff.rows)):
-        listed, more = _listed(changes)
+        listed, more = listed_changes(changes)
         if not listed:
             continue
         at = "" if index is None else f" (loss changes at {nm(diff.wavelength_m[index])})"
@@ -204,8 +212,7 @@ def render_markdown(diff, max_margin_loss_db=None, *, max_chars=MAX_MARKDOWN_CHA
     if shown:
         lines += ["", "Margins:", ""]
         if len(shown) < diff.wavelength_m.size:
-            lines += [f"{len(shown)} of {diff.wavelength_m.size} wavelengths shown: both ends, where the margin "
-                      "fell most and least, and evenly spaced points.", ""]
+            lines += [shown_sentence(len(shown), diff.wavelength_m.size), ""]
         lines += _table(MARGIN_HEADERS, [margin_cells(diff, i) for i in shown])
     return _bounded(lines, max_chars)
 
@@ -220,7 +227,7 @@ def render_terminal(diff, max_margin_loss_db=None):
     index = focus_index(diff)
     parts = [Text(f"linkbudget diff: {escaped(diff.new.result.title)}", style="bold"),
              Text(f"{escaped(diff.old.label)} → {escaped(diff.new.label)}")]
-    parts += [Text(line) for line in _summary_lines(diff, max_margin_loss_db)]
+    parts += [Text(line) for line in summary_lines(diff, max_margin_loss_db)]
     if diff.link_keys:
         parts.append(Text("Link keys changed: " + _keys_text(diff.link_keys, escaped)))
 
@@ -235,7 +242,7 @@ def render_terminal(diff, max_margin_loss_db=None):
         return shown_table
 
     for what, changes in (("Segments", diff.segments), ("Faces between media", diff.rows)):
-        listed, more = _listed(changes)
+        listed, more = listed_changes(changes)
         if listed:
             at = "" if index is None else f" (loss changes at {nm(diff.wavelength_m[index])})"
             rows = [change_cells(change, index, escaped) for change in listed]

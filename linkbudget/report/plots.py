@@ -21,7 +21,7 @@ draws both on one diagram: :func:`run_panels` gives the diagrams of one run,
 import difflib
 import io
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -227,11 +227,14 @@ def statistics_panels(result):
                   lambda axes: draw_margin_counts(axes, *stats.margin_histogram, result.required_margin_db))]
 
 
-def comparison_panels(old, new, labels=("old", "new")):
+def comparison_panels(old, new, labels=("old", "new"), renames=None):
     """The diagrams of two results (two revisions of a link) on shared axes: the power levels of
-    both, and for several wavelengths the margin sweeps of both."""
+    both, and for several wavelengths the margin sweeps of both. ``renames`` (old row name -> new
+    name) puts a renamed segment of the old result at the place of its new name."""
+    old_trace = Trace.of(old, labels[0])
+    old_trace = replace(old_trace, names=tuple((renames or {}).get(name, name) for name in old_trace.names))
     panels = [Panel("power along the chain", lambda axes: draw_power_levels(
-        axes, [Trace.of(old, labels[0]), Trace.of(new, labels[1])]))]
+        axes, [old_trace, Trace.of(new, labels[1])]))]
     if old.wavelength_m.size > 1 or new.wavelength_m.size > 1:
         panels.append(Panel("margin against wavelength", lambda axes: draw_margin_sweep(axes, [old, new], labels)))
     return panels

@@ -1,6 +1,6 @@
 """The statistical budget of a 40-segment link against a numpy floor, and its peak memory.
 
-Run: python benchmarks/statistics.py [--trials N]   (default 10^6)
+Run: python benchmarks/monte_carlo.py [--trials N]   (default 10^6)
 
 Two links of our own invention (a hillside vineyard sensor trunk), 40 segments each, at one
 wavelength: (A) datasheet values only (fibres with toleranced attenuation, connectors, counted
