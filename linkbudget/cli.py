@@ -643,6 +643,7 @@ def reach(
              "case. Needs --trials or a statistics block.")] = None,
     trials: Trials = None,
     seed: Seed = None,
+    quiet: Quiet = False,
 ):
     """How far one key can go: the largest value (for source.power the smallest) at which the link
     still closes in the worst case (with --yield: in that share of the trials), the margin there,
@@ -652,14 +653,16 @@ def reach(
     5 the link closes at no value of it, 2 the input is wrong, 3 a bug.
     """
     from linkbudget.config import ConfigError, load_link
-    from linkbudget.reach import LIMITED, NEVER_LIMITS, ReachError, find_reach, target_of
+    from linkbudget.reach import LIMITED, NEVER_LIMITS, ReachError, find_reach, target_of, worst_case_slack
     from linkbudget.report.reach import reach_json, reach_text
 
     required = _margin_override(min_margin)
     try:
         loaded = load_link(link, allow_path or ())
         slack = _reach_slack(loaded, _yield_fraction(stated_yield, "--yield"), trials, seed)
-        found = find_reach(loaded, target_of(loaded, vary), slack=slack, required_margin_db=required)
+        target = target_of(loaded, vary)
+        with _trial_progress(quiet or slack is worst_case_slack) as progress:
+            found = find_reach(loaded, target, slack=_counted(slack, progress), required_margin_db=required)
     except (ConfigError, ReachError) as error:
         _fail_input(str(error))
     text = reach_json(found) if output_format is ReachFormat.json else reach_text(found)
@@ -684,6 +687,22 @@ def _reach_slack(loaded, stated_yield, trials, seed):
     if asked is None:
         _fail_input("--yield needs trials: give --trials N, or a statistics block ({trials: N, seed: S}) in the file")
     return YieldCriterion(stated_yield, *asked)
+
+
+def _counted(slack, progress):
+    """``slack`` reporting to ``progress`` the trials drawn so far after each evaluation (as is
+    without a progress bar)."""
+    if progress is None:
+        return slack
+    done = [0]
+
+    def counted(link, required_margin_db=None):
+        found = slack(link, required_margin_db)
+        done[0] += slack.trials
+        progress(done[0])
+        return found
+
+    return counted
 
 
 def _interrupted(signum, frame):

@@ -18,7 +18,8 @@ replaced on copies of its segment (``model_copy``), never by editing YAML. The v
 replaces the key's spread by one value, which every budget case then takes.
 
 The slack is a function of the link (:func:`worst_case_slack`); a statistical criterion (the
-margin at a stated yield) can stand in for it through :func:`find_reach`'s ``slack``.
+limit at a stated yield, :class:`linkbudget.reach_yield.YieldCriterion`) stands in for it
+through :func:`find_reach`'s ``slack``.
 """
 
 from dataclasses import dataclass, replace

@@ -34,7 +34,10 @@ class YieldSlack(Slack):
 
 @dataclass(frozen=True)
 class YieldCriterion:
-    """The slack function of a reach at ``stated_yield`` over ``trials`` trials from ``seed``."""
+    """The slack function of a reach at ``stated_yield`` over ``trials`` trials from ``seed``.
+
+    Every call draws the same numbers from ``seed`` (common random numbers), so the slack is a
+    deterministic function of the varied value and Brent's bracket in :func:`find_reach` holds."""
 
     stated_yield: float
     trials: int

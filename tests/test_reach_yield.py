@@ -130,3 +130,18 @@ def test_readme_yield_reach_example():
     assert out.exit_code == 0
     shown = [line for line in out.stdout.splitlines() if line.startswith(("Reach of", "  limit:"))]
     assert len(shown) == 2 and all(line in readme for line in shown)
+
+
+def test_the_progress_counts_the_trials_of_each_evaluation():
+    from linkbudget.cli import _counted
+
+    seen = []
+    criterion = YieldCriterion(0.9, 300, 1)
+    link = linkbudget.load(SOURCE_SPREAD_LINK)
+    find_reach(link, target_of(link, "trunk.length"), slack=_counted(criterion, seen.append))
+    assert len(seen) > 10 and seen == [300 * (n + 1) for n in range(len(seen))]
+
+
+def test_no_progress_when_stderr_is_not_a_terminal(write_link):
+    done = run_cli("reach", write_link(SOURCE_SPREAD_LINK), "--vary", "trunk.length", "--trials", 500, "--yield", "90%")
+    assert done.exit_code == 0 and done.stderr == ""
