@@ -10,8 +10,9 @@ over the wavelength axis; the link closes where the slack is ≥ 0. The search e
 a grid over the key's valid range (geometric for lengths and counts, linear for a power in dBm),
 takes the last grid point that closes before one that does not (in the direction of the answer),
 and refines the crossing between them with Brent's bracketing root finder
-(:func:`scipy.optimize.brentq`). A whole-number key (a count) is searched over its continuous
-relaxation and answered with the whole number at the crossing, checked on both sides.
+(:func:`scipy.optimize.brentq`). A whole-number key (a count) takes the whole number nearest
+each value tried (the trials draw each counted part), so Brent's method closes in on the step
+between two counts; the answer is the whole number there, checked on both sides.
 
 Everything here works on a loaded link (:class:`linkbudget.config.Link`): the varied key is
 replaced on copies of its segment (``model_copy``), never by editing YAML. The varied value
@@ -157,7 +158,10 @@ def with_value(link, target, value):
         return replace(link, spec=spec)
     segment = link.segments[target.segment]
     old = getattr(segment, target.key)
-    new = type(old).model_construct(typ=float(value)) if isinstance(old, SpreadBase) else value
+    if target.whole:  # a count: the nearest whole number (the trials draw each counted part)
+        new = int(round(float(value)))
+    else:
+        new = type(old).model_construct(typ=float(value)) if isinstance(old, SpreadBase) else value
     segments = list(link.segments)
     segments[target.segment] = segment.model_copy(update={target.key: new})
     return replace(link, segments=tuple(segments))

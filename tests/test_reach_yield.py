@@ -58,9 +58,15 @@ def _tolerance_m(stated_yield, trials):
     return 4 * np.sqrt(stated_yield * (1 - stated_yield) / trials) / norm.pdf(z) * SIGMA_DB / ATTENUATION_DB_PER_M
 
 
-def _reach(text, criterion):
+def _reach_key(text, key, criterion):
+    """(the link, its reach of ``key``) at ``criterion``'s yield, or in the worst case for ``None``."""
     link = linkbudget.load(text)
-    return link, find_reach(link, target_of(link, "trunk.length"), slack=criterion)
+    options = {} if criterion is None else {"slack": criterion}
+    return link, find_reach(link, target_of(link, key), **options)
+
+
+def _reach(text, criterion):
+    return _reach_key(text, "trunk.length", criterion)
 
 
 @pytest.mark.parametrize("text", [SOURCE_SPREAD_LINK, CONNECTOR_SPREAD_LINK], ids=["source", "connector"])
@@ -145,3 +151,33 @@ def test_the_progress_counts_the_trials_of_each_evaluation():
 def test_no_progress_when_stderr_is_not_a_terminal(write_link):
     done = run_cli("reach", write_link(SOURCE_SPREAD_LINK), "--vary", "trunk.length", "--trials", 500, "--yield", "90%")
     assert done.exit_code == 0 and done.stderr == ""
+
+
+SPLICE_LINK = """\
+title: Yield reach of a splice count
+channels: [1550 nm]
+source:
+  power: 0 dBm
+receiver:
+  sensitivity: -20 dBm
+  required_margin: 3 dB
+chain:
+  - name: splices
+    kind: splice
+    count: 10
+    loss: {mean: 0.5 dB, sigma: 0.05 dB}
+"""
+
+
+def test_splice_count_at_a_yield_is_the_sum_of_normals_quantile():
+    # N independent N(μ, σ²) losses sum to N(Nμ, Nσ²): the link closes with probability
+    # Φ((A − Nμ)/(√N·σ)), A = 17 dB available; the answer is the largest N where that is ≥ y
+    stated_yield, mean_db, sigma_db = 0.99, 0.5, 0.05
+    counts = np.arange(1, 60)
+    closing = norm.cdf((AVAILABLE_MEAN_DB - counts * mean_db) / (np.sqrt(counts) * sigma_db))
+    expected = int(counts[closing >= stated_yield].max())
+    assert closing[expected - 1] > 0.999 and closing[expected] < 0.97  # far from y: no trial-count noise
+    _, found = _reach_key(SPLICE_LINK, "splices.count", YieldCriterion(stated_yield, 5000, 2))
+    assert (found.outcome, found.value) == (LIMITED, expected)
+    worst = _reach_key(SPLICE_LINK, "splices.count", None)[1]
+    assert worst.value == int(AVAILABLE_MEAN_DB // (mean_db + 3 * sigma_db))  # the ±3σ corner: fewer
