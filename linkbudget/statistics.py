@@ -34,7 +34,6 @@ Moments are summed about the nominal (``typ``) values, which keeps the sums free
 from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy.special import ndtri
 
 from linkbudget.engine import budget_rows
 from linkbudget.segments.cases import Draws, DrawStreams
@@ -158,6 +157,8 @@ def run_statistics(link, result, *, trials, seed, progress=None):
     -------
     Statistics
     """
+    from scipy.special import ndtri  # only where trials are run: the command line starts without scipy
+
     n_wavelengths = result.wavelength_m.size
     keep = trials * n_wavelengths * 8 <= KEPT_MARGIN_BYTES
     report = progress or (lambda done, total=None: None)
