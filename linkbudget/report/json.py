@@ -294,31 +294,48 @@ def _fixed_decimal_text(values, decimals, separator):
     whole = np.floor(magnitude / scale)  # exact: magnitude < 2^53, and its fraction is ≥ 1/scale or 0
     fraction = magnitude - whole * scale
     whole_places = len(str(int(whole.max())))
+    # One row per number, one column per character place, each filled column by column.
     sign_column, point_column = 1, 2 + whole_places
     chars = np.empty((values.size, 3 + whole_places + decimals), dtype=np.uint8)
     chars[:, 0], chars[:, sign_column], chars[:, point_column] = ord(","), ord("-"), ord(".")
-    chars[:, sign_column + 1:point_column] = _digit_chars(whole, whole_places)
-    chars[:, point_column + 1:] = _digit_chars(fraction, decimals)
+    _write_digits(whole, chars[:, sign_column + 1:point_column])
+    fraction_groups = _write_digits(fraction, chars[:, point_column + 1:])
     keep = np.ones(chars.shape, dtype=bool)
     keep[:, sign_column] = (scaled < 0) & (magnitude > 0)
-    whole_length = 1 + np.searchsorted(10.0 ** np.arange(1, whole_places), whole, side="right")
-    keep[:, sign_column + 1:point_column] = np.arange(whole_places) >= (whole_places - whole_length)[:, None]
-    trailing_zeros = sum(np.floor(fraction / 10.0**places) * 10.0**places == fraction for places in range(1, decimals))
-    keep[:, point_column + 2:] = np.arange(1, decimals) < (decimals - trailing_zeros)[:, None]
-    return chars[keep].tobytes()[1:].decode("ascii").replace(",", separator)
+    for place in range(whole_places - 1):  # a leading zero is kept only as the whole part "0"
+        keep[:, sign_column + 1 + place] = whole >= 10.0 ** (whole_places - 1 - place)
+    kept_decimals = decimals - _trailing_zeros(fraction_groups)  # one at least: "3.0"
+    for place in range(1, decimals):
+        keep[:, point_column + 1 + place] = kept_decimals > place
+    written = np.compress(keep.ravel(), chars.ravel()).tobytes()
+    return written.replace(b",", separator.encode("ascii")).decode("ascii")[len(separator):]
 
 
-#: The three ASCII digits of 0 to 999, a row each.
-_THREE_DIGITS = np.array([list(f"{number:03d}".encode("ascii")) for number in range(1000)], dtype=np.uint8)
+#: The ASCII digits of 0 to 999: row k holds the k-th of the three digits of each number.
+_THREE_DIGITS = np.array([list(f"{number:03d}".encode("ascii")) for number in range(1000)], dtype=np.uint8).T.copy()
+#: The trailing zeros of the three digits of 0 to 999 (three for 0).
+_TRAILING_ZEROS = np.array([3 - len(f"{number:03d}".rstrip("0")) for number in range(1000)])
 
 
-def _digit_chars(integers, places):
-    """The ASCII digits of non-negative integers held exactly as floats (below 2^53), zero-padded
-    to ``places``, as a (n, places) byte matrix, three digits a lookup."""
-    groups = -(-places // 3)
-    parts, rest = [], integers
-    for _ in range(groups):
+def _write_digits(integers, out):
+    """Write the ASCII digits of non-negative integers held exactly as floats (below 2^53) into
+    the (n, places) byte matrix ``out`` (a column per place), zero-padded, three digits a lookup;
+    the groups of three (0 to 999), last first."""
+    places = out.shape[1]
+    groups, rest = [], integers
+    for end in range(places, 0, -3):
         above = np.floor(rest / 1000.0)  # exact: the quotient's error is far below its distance to an integer
-        parts.append(_THREE_DIGITS[(rest - above * 1000.0).astype(np.intp)])
+        groups.append((rest - above * 1000.0).astype(np.intp))
+        for place in range(max(0, end - 3), end):
+            out[:, place] = _THREE_DIGITS[3 - end + place].take(groups[-1])
         rest = above
-    return np.concatenate(parts[::-1], axis=1)[:, 3 * groups - places:]
+    return groups
+
+
+def _trailing_zeros(groups):
+    """The trailing zeros of the numbers whose groups of three digits (last first) are ``groups``."""
+    count, zero_so_far = np.zeros(groups[0].shape, dtype=np.intp), np.ones(groups[0].shape, dtype=bool)
+    for group in groups:
+        count += _TRAILING_ZEROS[group] * zero_so_far
+        zero_so_far &= group == 0
+    return count
