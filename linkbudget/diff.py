@@ -215,9 +215,20 @@ def key_changes(old, new, *, ignore=()):
 
 
 def _chain_entries(side):
-    """segment name -> its written keys (flat), in chain order."""
+    """segment name -> its written keys (flat), in chain order; a segment made from a part has its
+    part's keys too, each named after the part (``part NAME: loss.typ``), so a change inside
+    a part file shows in every link that uses the part."""
     items = side.data.get("chain") or []
-    return {segment.name: flat_keys(item) for segment, item in zip(side.link.segments, items, strict=True)}
+    uses = {use.index: use for use in side.link.part_uses}
+    return {segment.name: flat_keys(item) if index not in uses else _part_use_keys(item, uses[index])
+            for index, (segment, item) in enumerate(zip(side.link.segments, items, strict=True))}
+
+
+def _part_use_keys(item, use):
+    """The flat keys of a chain entry made from a part: its own, then the part's it does not override."""
+    from_part = {key: value for key, value in use.entry.items() if key not in use.own_keys}
+    named = {f"part {use.parts[0].name}: {path}": text for path, text in flat_keys(from_part).items()}
+    return {**flat_keys(item), **named}
 
 
 def find_renames(old_entries, new_entries):

@@ -20,7 +20,8 @@ import subprocess
 from dataclasses import dataclass
 from pathlib import Path
 
-from linkbudget.paths import PathRefused
+from linkbudget.paths import PathOutside, PathRefused
+from linkbudget.reader import Source, decoded
 from linkbudget.text import escaped
 from linkbudget.yamlread import MAX_FILE_BYTES
 
@@ -132,12 +133,7 @@ class GitRevisionReader:
         return cls(Path(top), resolve_commit(top, revision), str(revision))
 
     def read(self, path, folder=None):
-        from linkbudget.reader import Source, decoded  # here: linkbudget.reader first imports the loader
-
-        written = str(path).replace("\\", "/")
-        key = posixpath.normpath(posixpath.join(str(folder or "").replace("\\", "/"), written))
-        if posixpath.isabs(written) or key == ".." or key.startswith("../"):
-            raise PathRefused(f"path '{escaped(path)}' is outside the repository")
+        key = _repository_key(path, folder)
         name = f"{self.label}:{key}"
         listed = _git(["--literal-pathspecs", "ls-tree", "-l", "-z", self.commit, "--", key], self.top)
         if listed.returncode != 0:
@@ -152,3 +148,29 @@ class GitRevisionReader:
             raise PathRefused(f"path '{escaped(name)}' is {what} at revision {escaped(self.label)}; not followed")
         data = _blob_head(self.top, blob, MAX_FILE_BYTES + 1)  # decoded() refuses more than the limit
         return Source(name, decoded(data, name))
+
+    def file_names(self, path, folder=None):
+        """Sorted names of the regular files directly in the folder ``path`` (joined to ``folder``)
+        at the commit: how a parts search path is looked through at a revision."""
+        key = _repository_key(path, folder)
+        where = [] if key == "." else ["--", key + "/"]
+        listed = _git(["--literal-pathspecs", "ls-tree", "-z", self.commit, *where], self.top)
+        name = f"{escaped(self.label)}:{escaped(key)}"
+        if listed.returncode != 0:
+            raise PathRefused(f"cannot read folder '{name}': {_first_line(listed.stderr)}")
+        entries = [item.decode("utf-8", "surrogateescape").partition("\t")
+                   for item in listed.stdout.split(b"\0") if item]
+        if not entries:
+            raise PathRefused(f"cannot read folder '{name}': no such folder at revision {escaped(self.label)}")
+        return tuple(sorted(posixpath.basename(entry_path) for head, _, entry_path in entries
+                            if head.split()[0] in _REGULAR_MODES))
+
+
+def _repository_key(path, folder):
+    """``path`` joined to ``folder`` as a normalised path from the repository's top folder; a path
+    that leaves the repository, or an absolute one, is refused (:class:`~linkbudget.paths.PathOutside`)."""
+    written = str(path).replace("\\", "/")
+    key = posixpath.normpath(posixpath.join(str(folder or "").replace("\\", "/"), written))
+    if posixpath.isabs(written) or key == ".." or key.startswith("../"):
+        raise PathOutside(f"path '{escaped(path)}' is outside the repository")
+    return key

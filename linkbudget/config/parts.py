@@ -196,12 +196,18 @@ class PartUse:
         the segment depends on.
     paths : tuple of Path
         The resolved files of the machine those are (none when read from memory or a revision).
+    entry : dict
+        The entry as the segment was made from it: the parts' keys under the use's own.
+    own_keys : frozenset
+        The keys the chain entry itself writes (the rest come from the parts).
     """
 
     segment: str
     index: int
     parts: tuple
     paths: tuple = ()
+    entry: dict = field(default_factory=dict, compare=False)
+    own_keys: frozenset = frozenset()
 
     @property
     def files(self):
@@ -455,7 +461,7 @@ class PartLibrary:
         if segment.name is None:
             segment = segment.model_copy(update={"name": item[PART_KEY]})
         segment = segment._resolved(_part_origin=parts[0])
-        use = PartUse(segment.name, index, parts, self._paths(parts))
+        use = PartUse(segment.name, index, parts, self._paths(parts), data, frozenset(item) - {PART_KEY})
         return segment, [], at, self.segment_files(at), use
 
     def _paths(self, parts):

@@ -342,3 +342,68 @@ def test_diff_markdown_escapes_user_text():
     text = render_markdown(compare(old, new))
     assert "| renamed | pa\\|nel &lt;script&gt; → \\*bulk\\*\\\\x1b\\[31m | connector |" in text
     assert "<script>" not in text and "\x1b" not in text
+
+
+# ---- a part changed in its part file: every use moves, and the part is named ----
+
+PART_FILE = "parts:\n  pair:\n    kind: connector\n    loss: {typ: 0.25 dB, max: 0.5 dB}\n"
+PART_LINK = """\
+title: shared pair
+wavelength: 1310 nm
+source: {power: 0 dBm}
+receiver: {sensitivity: -20 dBm}
+chain:
+  - part: pair
+    name: first
+  - name: trunk
+    kind: fiber
+    length: 1 km
+    attenuation: 0.4 dB/km
+  - part: pair
+    name: second
+    loss: {typ: 0.3 dB, max: 0.6 dB}
+"""
+
+
+@pytest.fixture
+def parts_repo(tmp_path):
+    """Two commits: the part file's pair loses 0.25/0.5 dB (typ/max), then 0.35/0.7 dB."""
+    top = tmp_path / "parts-repo"
+    (top / "parts").mkdir(parents=True)
+    (top / "links").mkdir()
+    git(top, "init", "-q")
+    git(top, "config", "user.email", "tests@example.invalid")
+    git(top, "config", "user.name", "tests")
+    (top / "linkbudget.toml").write_text('[parts]\nfolders = ["parts"]\n', encoding="utf-8")
+    (top / "links" / "shared.yaml").write_text(PART_LINK, encoding="utf-8")
+    for number, text in enumerate((PART_FILE, PART_FILE.replace("0.25 dB, max: 0.5 dB", "0.35 dB, max: 0.7 dB"))):
+        (top / "parts" / "pairs.parts.yaml").write_text(text, encoding="utf-8")
+        git(top, "add", "-A")
+        git(top, "commit", "-q", "-m", f"revision {number + 1}")
+    return top
+
+
+def test_diff_of_a_part_change_moves_each_use_and_names_the_part(cli, parts_repo, monkeypatch):
+    monkeypatch.chdir(parts_repo)
+    document = json_diff(cli, "links/shared.yaml", "HEAD~1..HEAD")
+    # hand sums: only "first" takes the part's loss (second overrides it): 0.35 - 0.25 typ, 0.7 - 0.5 worst
+    assert_allclose(document["margin_change_db"]["typ"], [-0.10], atol=1e-9)
+    assert_allclose(document["margin_change_db"]["worst"], [-0.20], atol=1e-9)
+    by_name = {entry["new_name"]: entry for entry in document["segments"]}
+    assert by_name["first"]["status"] == "changed"
+    assert by_name["first"]["keys"] == [{"path": "part pair: loss.typ", "old": "0.25 dB", "new": "0.35 dB"},
+                                        {"path": "part pair: loss.max", "old": "0.5 dB", "new": "0.7 dB"}]
+    assert by_name["second"]["status"] == "unchanged" and by_name["trunk"]["status"] == "unchanged"
+
+
+def test_git_reader_lists_a_folder_at_a_revision(parts_repo):
+    from linkbudget.gitread import GitRevisionReader
+    from linkbudget.paths import PathOutside, PathRefused
+
+    reader = GitRevisionReader.at(parts_repo, "HEAD~1")
+    assert reader.file_names("parts", "links/..") == ("pairs.parts.yaml",)
+    assert reader.file_names(".", None) == ("linkbudget.toml",)  # files only, not the folders
+    with pytest.raises(PathOutside):
+        reader.file_names("..", None)
+    with pytest.raises(PathRefused):
+        reader.file_names("no-such-folder", None)
