@@ -63,15 +63,20 @@ def git(folder, *arguments):
     subprocess.run(["git", *arguments], cwd=folder, check=True, capture_output=True)
 
 
+def new_repository(top):
+    """An empty repository at ``top`` with an author for its commits."""
+    git(top, "init", "-q")
+    git(top, "config", "user.email", "tests@example.invalid")
+    git(top, "config", "user.name", "tests")
+
+
 @pytest.fixture
 def repo(tmp_path):
     """A repository with two commits of ``links/kiln.yaml`` (OLD_LINK, then NEW_LINK)."""
     assert shutil.which("git"), "these tests need git"
     top = tmp_path / "repo"
     (top / "links").mkdir(parents=True)
-    git(top, "init", "-q")
-    git(top, "config", "user.email", "tests@example.invalid")
-    git(top, "config", "user.name", "tests")
+    new_repository(top)
     link = top / "links" / "kiln.yaml"
     for number, text in enumerate((OLD_LINK, NEW_LINK)):
         link.write_text(text, encoding="utf-8")
@@ -371,9 +376,7 @@ def parts_repo(tmp_path):
     top = tmp_path / "parts-repo"
     (top / "parts").mkdir(parents=True)
     (top / "links").mkdir()
-    git(top, "init", "-q")
-    git(top, "config", "user.email", "tests@example.invalid")
-    git(top, "config", "user.name", "tests")
+    new_repository(top)
     (top / "linkbudget.toml").write_text('[parts]\nfolders = ["parts"]\n', encoding="utf-8")
     (top / "links" / "shared.yaml").write_text(PART_LINK, encoding="utf-8")
     for number, text in enumerate((PART_FILE, PART_FILE.replace("0.25 dB, max: 0.5 dB", "0.35 dB, max: 0.7 dB"))):
