@@ -316,7 +316,8 @@ class DiffFormat(str, Enum):
 @app.command(cls=_Command)
 def check(
     links: Annotated[list[str], typer.Argument(
-        metavar="LINK", help="Link files, folders (their .yaml/.yml files), glob patterns, or - for standard input.")],
+        metavar="LINK",
+        help="Link files, folders (the links and part files under them), glob patterns, or - for standard input.")],
     min_margin: Annotated[str | None, typer.Option(
         "--min-margin", metavar="MARGIN",
         help="Required worst-case margin for every file, e.g. '3dB' (overrides each file's own).")

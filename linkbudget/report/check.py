@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from linkbudget import __version__
 from linkbudget.report.json import DB_RESOLUTION_DECIMALS, _number
 from linkbudget.report.markdown import _table, markdown_text
-from linkbudget.report.summary import check_error_line, check_line, check_summary, db_text, fixed
+from linkbudget.report.summary import budget_reasons, check_error_line, check_line, check_summary, db_text, fixed
 from linkbudget.text import escaped
 
 SCHEMA = "linkbudget.check/1"
@@ -40,9 +40,8 @@ class CheckOutcome:
 
     @property
     def passes(self):
-        if self.least_yield is not None:
-            return self.result.statistics.yield_fraction >= self.least_yield and not self.failures
-        return self.result.closes and not self.failures
+        """The link loaded and nothing fails (:attr:`reasons`)."""
+        return self.result is not None and not self.reasons
 
     @property
     def status(self):
@@ -57,8 +56,7 @@ class CheckOutcome:
             reached = self.result.statistics.yield_fraction >= self.least_yield
             budget = [] if reached else ["yield below the least asked"]
         else:
-            budget = [reason for ok, reason in ((self.result.margin_ok, "margin short"),
-                                                (self.result.overload_ok, "overload exceeded")) if not ok]
+            budget = budget_reasons(self.result)
         return budget + list(self.failures)
 
     @property
@@ -75,7 +73,7 @@ class CheckOutcome:
 
             line = yield_check_line(self.result, self.name, self.least_yield)
             return line + (f" ({', '.join(self.failures)})" if self.failures else "")
-        return check_line(self.result, self.name, self.failures)
+        return check_line(self.result, self.name, self.reasons)
 
 
 def counts(outcomes):

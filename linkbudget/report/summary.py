@@ -118,11 +118,15 @@ def wavelength_status(result):
     return words[short.astype(int) + 2 * over.astype(int)]
 
 
-def check_line(result, path, failures=()):
-    """The CI gate's line for one link: PASS or FAIL, its worst-case margin and what fails (with
-    the review's ``failures``, :func:`linkbudget.gates.gate_failures`)."""
-    reasons = [reason for ok, reason in ((result.margin_ok, "margin short"),
-                                          (result.overload_ok, "overload exceeded")) if not ok] + list(failures)
+def budget_reasons(result):
+    """What fails in the worst-case budget, in words: ``margin short``, ``overload exceeded``."""
+    return [reason for ok, reason in ((result.margin_ok, "margin short"), (result.overload_ok, "overload exceeded"))
+            if not ok]
+
+
+def check_line(result, path, reasons):
+    """The CI gate's line for one link: PASS or FAIL, its worst-case margin and what fails
+    (``reasons``, in words: :func:`budget_reasons` and the review's gates)."""
     word = "PASS " if not reasons else "FAIL "
     worst = float(result.margin_db["worst"].min())
     line = (f"{word}  {escaped(path)}: worst-case margin {fixed(worst, signed=True)} dB, "
