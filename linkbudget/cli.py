@@ -156,12 +156,20 @@ def _trial_progress(quiet):
         yield advance
 
 
+def _requested_trials(loaded, trials, seed):
+    """(trials, seed) that ``--trials``/``--seed`` or the file's statistics block ask for (each
+    option checked against its range), or ``None``."""
+    from linkbudget.statistics import requested
+
+    return requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
+                     _checked_count("--seed", seed, "seed"))
+
+
 def _with_trials(loaded, result, trials, seed, quiet):
     """``result`` with its statistical budget, when ``--trials`` or the file's ``statistics`` asks."""
-    from linkbudget.statistics import requested, with_statistics
+    from linkbudget.statistics import with_statistics
 
-    asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
-                      _checked_count("--seed", seed, "seed"))
+    asked = _requested_trials(loaded, trials, seed)
     if asked is None:
         if seed is not None:
             _fail_input("--seed: a seed is for trials; give --trials N too, or a statistics block in the file")
@@ -433,9 +441,7 @@ def diff(
     against: Annotated[str | None, typer.Option(
         "--against", metavar="REV", help="Compare LINK as it is now with LINK at this git revision.")] = None,
     output_format: Annotated[DiffFormat, typer.Option("--format", "-f", help="Output format.")] = DiffFormat.text,
-    output: Annotated[
-        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
-    ] = None,
+    output: OutputFile = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output or --plot file.")] = False,
     plot: Annotated[Path | None, typer.Option(
         "--plot", metavar="FILE",
@@ -605,9 +611,7 @@ def materials(
 
 @app.command(cls=_Command)
 def schema(
-    output: Annotated[
-        Path | None, typer.Option("--output", "-o", metavar="FILE", help="Write to this file instead of the terminal.")
-    ] = None,
+    output: OutputFile = None,
     force: Annotated[bool, typer.Option("--force", help="Replace an existing --output file.")] = False,
     parts: Annotated[bool, typer.Option("--parts", help="The schema of part files (*.parts.yaml) instead.")] = False,
 ):
@@ -677,10 +681,8 @@ def _reach_slack(loaded, stated_yield, trials, seed):
     trials of ``--trials`` (or the file's statistics block)."""
     from linkbudget.reach import worst_case_slack
     from linkbudget.reach_yield import YieldCriterion
-    from linkbudget.statistics import requested
 
-    asked = requested(loaded.spec, _checked_count("--trials", trials, "trial count"),
-                      _checked_count("--seed", seed, "seed"))
+    asked = _requested_trials(loaded, trials, seed)
     if stated_yield is None:
         if trials is not None or seed is not None:
             _fail_input("--trials/--seed: reach runs trials only for a yield; give --yield too, e.g. --yield 99.9%")
