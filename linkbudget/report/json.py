@@ -55,15 +55,23 @@ def _number_list(values, decimals):
     if values.size <= _SHORT_LIST:
         return [_number(value, decimals) for value in values.tolist()]
     scale = 10.0 ** decimals
-    with np.errstate(invalid="ignore", over="ignore"):
-        scaled = values * scale
+    scaled, near_tie = _scaled(values, scale)
+    with np.errstate(invalid="ignore"):
         rounded = np.rint(scaled) / scale + 0.0
-        distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
-        unsure = ~(distance_from_half > 2 * np.spacing(np.abs(scaled))) | ~(np.abs(scaled) < 2.0**52)
+        unsure = near_tie | ~(np.abs(scaled) < 2.0**52)
     numbers = rounded.tolist()
     for index in np.flatnonzero(unsure).tolist():  # non-finite values too: their comparisons are false
         numbers[index] = _number(float(values[index]), decimals)
     return numbers
+
+
+def _scaled(values, scale):
+    """(x·scale, near tie): where the product's own rounding may have crossed a half of the last
+    place (or x is not finite: its comparisons are false), so that rint of it may not be round()'s."""
+    with np.errstate(invalid="ignore", over="ignore"):
+        scaled = values * scale
+        distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
+        return scaled, ~(distance_from_half > 2 * np.spacing(np.abs(scaled)))
 
 
 class _Numbers:
@@ -282,11 +290,9 @@ def _fixed_decimal_text(values, decimals, separator):
     scale = 10 ** decimals
     if values.size <= _SHORT_LIST or not np.isfinite(values).all():
         return None
-    with np.errstate(invalid="ignore", over="ignore"):
-        scaled = values * float(scale)
-        magnitude = np.abs(np.rint(scaled))
-        distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
-    for index in np.flatnonzero(~(distance_from_half > 2 * np.spacing(np.abs(scaled)))).tolist():
+    scaled, near_tie = _scaled(values, float(scale))
+    magnitude = np.abs(np.rint(scaled))
+    for index in np.flatnonzero(near_tie).tolist():
         magnitude[index] = abs(round(_number(float(values[index]), decimals) * scale))  # a near tie: round()'s
     if not np.all((magnitude < 2.0 ** (52 - 3.33 * decimals) * scale)
                   & ((magnitude == 0) | (magnitude >= scale / 1e4))):
