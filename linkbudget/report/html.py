@@ -15,8 +15,6 @@ import hashlib
 import html
 from dataclasses import dataclass
 
-import numpy as np
-
 from linkbudget import __version__
 from linkbudget.report import review_text as words
 from linkbudget.report import summary
@@ -136,24 +134,16 @@ def margin_section(result):
     return Section("Margin per wavelength", "margin-section", intro + table)
 
 
-def _hazard_cell(item):
-    """A point's hazard level, marked where it is above hazard level 1 (or not assessed)."""
-    return f'<span class="status-{"short" if item.above_level_1 else "ok"}">{text(item.hazard_level or "n/a")}</span>'
-
-
 def review_section(result):
     """Eye safety at the reachable points, back reflection and polarization-dependent loss (the
     review's estimates, in the words the terminal and Markdown use); ``None`` without a review."""
     if result.review is None:
         return None
-    rows = [[text(item.point.name), text(item.point.what), text(words.assessed_at(result, item)),
-             text(words.milliwatt_text(item.power_w)), text(words.milliwatt_text(item.class1_limit_w)),
-             db_text(item.margin_db, True) if np.isfinite(item.margin_db) else "n/a",
-             "known" if item.beam_known else "unknown",
-             _hazard_cell(item)]
-            for item in result.review.assessments]
-    table = _table(["point", "what", "wavelength", "highest power mW", "Class 1 limit mW", "margin dB", "beam",
-                    "hazard level"], rows, table_id="safety", text_columns=3)
+    rows = []
+    for item in result.review.assessments:
+        *cells, level = (text(cell) for cell in words.point_cells(result, item))
+        rows.append([*cells, f'<span class="status-{"short" if item.above_level_1 else "ok"}">{level}</span>'])
+    table = _table(words.POINT_HEADERS, rows, table_id="safety", text_columns=3)
     sentences = [*words.safety_sentences(result, str), *words.back_reflection_sentences(result, str),
                  (words.polarization_sentence(result, str), False)]
     items = "".join(f'<li class="{"alarm" if alarm else "fact"}">{text(sentence)}</li>'

@@ -30,6 +30,20 @@ def assessed_at(result, item):
     return wavelengths[0] if len(wavelengths) == 1 else f"{len(wavelengths)} channels"
 
 
+#: The columns of the reachable points' table in the Markdown and HTML reports.
+POINT_HEADERS = ["point", "what", "wavelength", "highest power mW", "Class 1 limit mW", "margin dB", "beam",
+                 "hazard level"]
+
+
+def point_cells(result, item):
+    """The plain-text cells of one reachable point under :data:`POINT_HEADERS` (the name as the
+    user wrote it: each format escapes it)."""
+    return [item.point.name, item.point.what, assessed_at(result, item), milliwatt_text(item.power_w),
+            milliwatt_text(item.class1_limit_w),
+            db_text(item.margin_db, True) if np.isfinite(item.margin_db) else "n/a",
+            "known" if item.beam_known else "unknown", item.hazard_level or "n/a"]
+
+
 def point_sentence(result, item, shown=escaped):
     """The sentence for a point above hazard level 1 or not assessed, else ``None``."""
     name, where = shown(item.point.name), assessed_at(result, item)
