@@ -523,7 +523,7 @@ def _not_finite_problem(result, link):
                    "check the index, thickness and loss values of this segment")
 
 
-def evaluate(link, *, required_margin_db=None):
+def evaluate(link, *, required_margin_db=None, review=True):
     """Evaluate a validated link over its wavelength axis.
 
     Parameters
@@ -532,6 +532,9 @@ def evaluate(link, *, required_margin_db=None):
         A loaded link.
     required_margin_db : float, optional
         Override the receiver's ``required_margin`` (the CI gate's ``--min-margin``).
+    review : bool, optional
+        Also assess the reachable points, the back reflection and the PDL (``LinkResult.review``);
+        a search that evaluates the link many times for its margin alone (``reach``) leaves it out.
 
     Returns
     -------
@@ -570,6 +573,8 @@ def evaluate(link, *, required_margin_db=None):
     problem = _not_finite_problem(result, link)
     if problem is not None:
         raise ConfigError([problem])
+    if not review:
+        return result
     from linkbudget.review import review_link
 
     reviewed = replace(result, review=review_link(link, result))

@@ -173,7 +173,7 @@ def worst_case_slack(link, required_margin_db=None):
     from linkbudget.engine import evaluate
 
     try:
-        result = evaluate(link, required_margin_db=required_margin_db)
+        result = evaluate(link, required_margin_db=required_margin_db, review=False)
     except ConfigError:
         return Slack(_NO_LIGHT_DB, "sensitivity", 0, _NO_LIGHT_DB)
     short_db = result.margin_db["worst"] - result.required_margin_db
