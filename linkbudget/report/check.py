@@ -9,12 +9,11 @@ link does not close, an ``<error>`` where it does not load), built with
 all (most control characters) are first shown as escapes (:func:`linkbudget.text.escaped`).
 """
 
-import json
 import re
 from dataclasses import dataclass
 
 from linkbudget import __version__
-from linkbudget.report.json import DB_RESOLUTION_DECIMALS, _number
+from linkbudget.report.json import DB_RESOLUTION_DECIMALS, _number, json_text
 from linkbudget.report.markdown import _table, markdown_text
 from linkbudget.report.summary import budget_reasons, check_error_line, check_line, check_summary, db_text, fixed
 from linkbudget.text import escaped
@@ -144,7 +143,7 @@ def check_dict(outcomes, required_margin_db=None):
 
 
 def render_json(outcomes, required_margin_db=None):
-    return json.dumps(check_dict(outcomes, required_margin_db), indent=2) + "\n"
+    return json_text(check_dict(outcomes, required_margin_db))
 
 
 #: The characters XML 1.0 cannot hold (its ``Char`` production's complement).

@@ -70,6 +70,7 @@ def diff_dict(diff, max_margin_loss_db=None):
 
 
 def diff_json_chunks(diff, max_margin_loss_db=None):
-    """The JSON text of the diff in pieces (``json.dumps(diff_dict(...), indent=2) + "\\n"``)."""
+    """The JSON text of the diff in pieces (together :func:`~linkbudget.report.json.json_text` of
+    :func:`diff_dict`)."""
     yield from _encoded(_document(diff, max_margin_loss_db), 0)
     yield "\n"

@@ -13,6 +13,7 @@ them slice by slice, so a sweep of 100,000 wavelengths is never one string in me
 
 import json
 import math
+from functools import cache
 
 import numpy as np
 
@@ -36,6 +37,8 @@ _SHORT_LIST = 32
 
 #: Indentation of the written JSON (that of ``json.dumps(..., indent=2)``).
 _INDENT = "  "
+#: Between the numbers of a list (that of ``json.dumps``).
+_SEPARATOR = ", "
 
 
 def _number(value, decimals):
@@ -71,7 +74,7 @@ def _scaled(values, scale):
     with np.errstate(invalid="ignore", over="ignore"):
         scaled = values * scale
         distance_from_half = np.abs(scaled - np.floor(scaled) - 0.5)
-        return scaled, ~(distance_from_half > 2 * np.spacing(np.abs(scaled)))
+        return scaled, ~(distance_from_half > np.abs(scaled) * 2.0**-51)  # 2^-51·|y| ≥ 2 ulp(y)
 
 
 class _Numbers:
@@ -233,20 +236,26 @@ def result_dict(result):
     return _plain(_document(result))
 
 
+def json_text(data):
+    """Plain JSON-ready ``data`` as every JSON file of the tool is laid out (:func:`_encoded`),
+    with a final newline."""
+    return "".join(_encoded(data, 0)) + "\n"
+
+
 def json_chunks(result):
-    """The JSON text of the result in pieces, in order: together they are exactly
-    ``json.dumps(result_dict(result), indent=2) + "\\n"``, but no piece holds more than
-    :data:`SLICE_NUMBERS` numbers."""
+    """The JSON text of the result in pieces, in order: together they are :func:`json_text` of
+    :func:`result_dict`, but no piece holds more than :data:`SLICE_NUMBERS` numbers."""
     yield from _encoded(_document(result), 0)
     yield "\n"
 
 
 def _encoded(value, depth):
-    """Pieces of ``value`` as ``json.dumps(value, indent=2)`` writes it at nesting ``depth``."""
+    """Pieces of ``value`` as ``json.dumps(value, indent=2)`` writes it at nesting ``depth``, but
+    for a list of numbers, booleans and nulls, written on one line (:func:`_is_flat`)."""
     if isinstance(value, _Numbers):
-        yield from _encoded_numbers(value, depth)
+        yield from _encoded_numbers(value)
         return
-    if not isinstance(value, dict | list) or not value:
+    if not isinstance(value, dict | list) or not value or _is_flat(value):
         yield json.dumps(value)
         return
     inner = "\n" + _INDENT * (depth + 1)
@@ -258,34 +267,38 @@ def _encoded(value, depth):
     yield "\n" + _INDENT * depth + ("}" if is_dict else "]")
 
 
-def _encoded_numbers(numbers, depth):
-    """A number list, one number a line as ``indent=2`` writes it, slice by slice: in fixed
-    decimals where that is Python's float repr (:func:`_fixed_decimal_text`), else through the
-    compact C encoder with its line breaks put in by one replacement."""
-    if not numbers.values.size:
-        yield "[]"
-        return
-    inner = "\n" + _INDENT * (depth + 1)
-    separator = "," + inner
+def _is_flat(value):
+    """Whether ``value`` is a list of numbers, booleans and nulls only (one line in the JSON)."""
+    return isinstance(value, list) and all(item is None or isinstance(item, int | float) for item in value)
+
+
+def _encoded_numbers(numbers):
+    """A number list on one line, slice by slice: in fixed decimals where that is Python's float
+    repr (:func:`_fixed_decimal_text`), else through the compact C encoder."""
+    yield "["
     for position, start in enumerate(range(0, numbers.values.size, SLICE_NUMBERS)):
         values = numbers.values[start:start + SLICE_NUMBERS]
-        text = _fixed_decimal_text(values, numbers.decimals, separator)
+        text = _fixed_decimal_text(values, numbers.decimals)
         if text is None:
-            text = json.dumps(_number_list(values, numbers.decimals))[1:-1].replace(", ", separator)
-        yield (separator if position else "[" + inner) + text
-    yield "\n" + _INDENT * depth + "]"
+            text = json.dumps(_number_list(values, numbers.decimals))[1:-1]
+        yield (_SEPARATOR if position else "") + text
+    yield "]"
 
 
-def _fixed_decimal_text(values, decimals, separator):
+def _fixed_decimal_text(values, decimals):
     """The values rounded to ``decimals`` and written as ``repr`` writes the rounded floats, joined
-    by ``separator``, built as one byte matrix; ``None`` where that is not sure for every value.
+    by :data:`_SEPARATOR`; ``None`` where that is not sure for every value.
 
     The scaled integer k = rint(x·10^d) is exact where :func:`_number_list` is sure, and the
     rounded float is the double nearest to k/10^d (near ties take k from :func:`round`); below
     2^(52 − 3.33·d) its ulp is under 10^−d, so no other decimal of d places or fewer maps to it
     and its shortest repr is k/10^d itself, the fraction's trailing zeros dropped (one kept).
-    ``repr`` switches to an exponent below 1e-4, so those values, and non-finite ones, are left
-    to the caller.
+    ``repr`` switches to an exponent below 1e-4, so those values, non-finite ones and whole parts
+    of more than four digits are left to the caller.
+
+    Each number is one fixed-width record of bytes, ``", "``, sign, four-digit groups of its
+    whole part and fraction looked up in tables and written as 32-bit words (the places a number
+    does not use left NUL), and the NULs are then dropped from all records at once.
     """
     scale = 10 ** decimals
     if values.size <= _SHORT_LIST or not np.isfinite(values).all():
@@ -294,54 +307,73 @@ def _fixed_decimal_text(values, decimals, separator):
     magnitude = np.abs(np.rint(scaled))
     for index in np.flatnonzero(near_tie).tolist():
         magnitude[index] = abs(round(_number(float(values[index]), decimals) * scale))  # a near tie: round()'s
-    if not np.all((magnitude < 2.0 ** (52 - 3.33 * decimals) * scale)
-                  & ((magnitude == 0) | (magnitude >= scale / 1e4))):
+    if not (magnitude.max() < 2.0 ** (52 - 3.33 * decimals) * scale
+            and np.all((magnitude == 0) | (magnitude >= scale / 1e4))):
         return None
-    whole = np.floor(magnitude / scale)  # exact: magnitude < 2^53, and its fraction is ≥ 1/scale or 0
-    fraction = magnitude - whole * scale
+    units = magnitude.astype(np.int64)
+    whole = units // scale
+    fraction = units - whole * scale
     whole_places = len(str(int(whole.max())))
-    # One row per number, one column per character place, each filled column by column.
-    sign_column, point_column = 1, 2 + whole_places
-    chars = np.empty((values.size, 3 + whole_places + decimals), dtype=np.uint8)
-    chars[:, 0], chars[:, sign_column], chars[:, point_column] = ord(","), ord("-"), ord(".")
-    _write_digits(whole, chars[:, sign_column + 1:point_column])
-    fraction_groups = _write_digits(fraction, chars[:, point_column + 1:])
-    keep = np.ones(chars.shape, dtype=bool)
-    keep[:, sign_column] = (scaled < 0) & (magnitude > 0)
-    for place in range(whole_places - 1):  # a leading zero is kept only as the whole part "0"
-        keep[:, sign_column + 1 + place] = whole >= 10.0 ** (whole_places - 1 - place)
-    kept_decimals = decimals - _trailing_zeros(fraction_groups)  # one at least: "3.0"
-    for place in range(1, decimals):
-        keep[:, point_column + 1 + place] = kept_decimals > place
-    written = np.compress(keep.ravel(), chars.ravel()).tobytes()
-    return written.replace(b",", separator.encode("ascii")).decode("ascii")[len(separator):]
+    if whole_places > 4:
+        return None
+    width = len(_SEPARATOR) + 2 + whole_places + decimals  # separator, sign, whole, point, fraction
+    records = np.empty(values.size * width, dtype=np.uint8)
+    groups = _digit_groups(fraction, decimals)
+    words = _group_words(decimals - 4 * (len(groups) - 1))
+    zeros_after = True  # whether every group after this one is zero: this one's trailing zeros go
+    for position, (group, places_after) in enumerate(groups):  # each ends places_after before the end
+        trimmed = _KEEP_FIRST_PLACE if position == len(groups) - 1 else _TRIMMED
+        _column(records, width, width - places_after - 4, "<u4")[...] = words[group + zeros_after * trimmed]
+        zeros_after = zeros_after & (group == 0)
+    point = width - decimals - 1
+    _column(records, width, point - 4, "<u4")[...] = _RIGHT_ALIGNED_DIGITS[whole]  # its spill is rewritten below
+    _column(records, width, point, "u1")[...] = ord(".")
+    for place, character in enumerate(_SEPARATOR.encode("ascii")):
+        _column(records, width, place, "u1")[...] = character
+    negative = (scaled < 0) & (magnitude > 0)
+    _column(records, width, len(_SEPARATOR), "u1")[...] = negative.view(np.uint8) * np.uint8(ord("-"))
+    return records.tobytes().translate(None, b"\0")[len(_SEPARATOR):].decode("ascii")
 
 
-#: The ASCII digits of 0 to 999: row k holds the k-th of the three digits of each number.
-_THREE_DIGITS = np.array([list(f"{number:03d}".encode("ascii")) for number in range(1000)], dtype=np.uint8).T.copy()
-#: The trailing zeros of the three digits of 0 to 999 (three for 0).
-_TRAILING_ZEROS = np.array([3 - len(f"{number:03d}".rstrip("0")) for number in range(1000)])
-
-
-def _write_digits(integers, out):
-    """Write the ASCII digits of non-negative integers held exactly as floats (below 2^53) into
-    the (n, places) byte matrix ``out`` (a column per place), zero-padded, three digits a lookup;
-    the groups of three (0 to 999), last first."""
-    places = out.shape[1]
-    groups, rest = [], integers
-    for end in range(places, 0, -3):
-        above = np.floor(rest / 1000.0)  # exact: the quotient's error is far below its distance to an integer
-        groups.append((rest - above * 1000.0).astype(np.intp))
-        for place in range(max(0, end - 3), end):
-            out[:, place] = _THREE_DIGITS[3 - end + place].take(groups[-1])
+def _digit_groups(fraction, decimals):
+    """The four-digit groups of the ``decimals``-place fractions (integers below 10^decimals),
+    last first, each with the number of places after it; the first group may hold fewer places."""
+    groups, rest = [], fraction
+    for places_after in range(0, decimals - 4, 4):
+        above = rest // 10_000
+        groups.append((rest - above * 10_000, places_after))
         rest = above
-    return groups
+    return [*groups, (rest, 4 * len(groups))]
 
 
-def _trailing_zeros(groups):
-    """The trailing zeros of the numbers whose groups of three digits (last first) are ``groups``."""
-    count, zero_so_far = np.zeros(groups[0].shape, dtype=np.intp), np.ones(groups[0].shape, dtype=bool)
-    for group in groups:
-        count += _TRAILING_ZEROS[group] * zero_so_far
-        zero_so_far &= group == 0
-    return count
+def _column(records, width, offset, dtype):
+    """The field at byte ``offset`` of every ``width``-byte record, as an array of ``dtype``
+    (little-endian words may sit at any byte)."""
+    return np.ndarray((records.size // width,), dtype=dtype, buffer=records, offset=offset, strides=(width,))
+
+
+def _digit_tables():
+    """(zero-padded, right-aligned with NUL for leading zeros) ASCII of 0 to 9999 in four places,
+    as little-endian 32-bit words (the first place lowest)."""
+    numbers = np.arange(10_000)
+    padded = np.stack([numbers // 10 ** (3 - place) % 10 for place in range(4)], axis=1).astype(np.uint8) + ord("0")
+    shown = (numbers[:, None] >= 10 ** (3 - np.arange(4))) | (np.arange(4) == 3)
+    return padded, np.where(shown, padded, 0).astype(np.uint8)
+
+
+_PADDED_PLACES, _RIGHT_ALIGNED_PLACES = _digit_tables()
+_RIGHT_ALIGNED_DIGITS = _RIGHT_ALIGNED_PLACES.view("<u4").ravel()
+#: Offsets into :func:`_group_words`: a group as it is, its trailing zeros NUL, and the same but
+#: for the fraction's first place (the first group's, which ``repr`` keeps: "3.0").
+_TRIMMED, _KEEP_FIRST_PLACE = 10_000, 20_000
+
+
+@cache
+def _group_words(first_group_places):
+    """Words of the four-digit groups 0 to 9999: as they are, with their trailing zeros NUL, and
+    the same keeping the fraction's first place (place 4 − ``first_group_places`` of the first group)."""
+    trailing = np.cumprod((_PADDED_PLACES == ord("0"))[:, ::-1], axis=1)[:, ::-1].astype(bool)
+    trimmed = np.where(trailing, 0, _PADDED_PLACES).astype(np.uint8)
+    keep_first = trimmed.copy()
+    keep_first[:, 4 - first_group_places] = _PADDED_PLACES[:, 4 - first_group_places]
+    return np.concatenate([_PADDED_PLACES, trimmed, keep_first]).view("<u4").ravel()

@@ -3,10 +3,10 @@
 Both read a :class:`linkbudget.reach.Reach` and compute nothing of their own.
 """
 
-import json
 
 from linkbudget import __version__
 from linkbudget.reach import LIMITED, NEVER_LIMITS
+from linkbudget.report.json import json_text
 from linkbudget.report.statistics_table import yield_percent
 from linkbudget.report.summary import fixed
 from linkbudget.text import escaped, length_text, nm, wavelength_text
@@ -136,6 +136,6 @@ def reach_dict(reach):
 
 
 def reach_json(reach):
-    """:func:`reach_dict` as indented JSON text with a final newline."""
-    return json.dumps(reach_dict(reach), indent=2) + "\n"
+    """:func:`reach_dict` as JSON text with a final newline."""
+    return json_text(reach_dict(reach))
 
