@@ -304,9 +304,11 @@ def _fixed_decimal_text(values, decimals):
     if values.size <= _SHORT_LIST or not np.isfinite(values).all():
         return None
     scaled, near_tie = _scaled(values, float(scale))
-    magnitude = np.abs(np.rint(scaled))
-    for index in np.flatnonzero(near_tie).tolist():
-        magnitude[index] = abs(round(_number(float(values[index]), decimals) * scale))  # a near tie: round()'s
+    rounded = np.rint(scaled)
+    magnitude, negative = np.abs(rounded), rounded < 0  # rint(-0.3) is -0.0: not negative
+    for index in np.flatnonzero(near_tie).tolist():  # a near tie: round()'s
+        rounded_value = round(_number(float(values[index]), decimals) * scale)
+        magnitude[index], negative[index] = abs(rounded_value), rounded_value < 0
     if not (magnitude.max() < 2.0 ** (52 - 3.33 * decimals) * scale
             and np.all((magnitude == 0) | (magnitude >= scale / 1e4))):
         return None
@@ -330,7 +332,6 @@ def _fixed_decimal_text(values, decimals):
     _column(records, width, point, "u1")[...] = ord(".")
     for place, character in enumerate(_SEPARATOR.encode("ascii")):
         _column(records, width, place, "u1")[...] = character
-    negative = (scaled < 0) & (magnitude > 0)
     _column(records, width, len(_SEPARATOR), "u1")[...] = negative.view(np.uint8) * np.uint8(ord("-"))
     return records.tobytes().translate(None, b"\0")[len(_SEPARATOR):].decode("ascii")
 
