@@ -118,12 +118,26 @@ def test_evaluate_medium_flux_law_forms_agree():
 def test_result_dict_minimum_contract():
     result = evaluate("  - {kind: element, loss: {typ: 1 dB, max: 2 dB}}", wavelength="channels: [1310 nm, 1550 nm]")
     data = linkbudget.result_dict(result)
-    assert data["schema"] == "linkbudget.result/2"
+    assert data["schema"] == "linkbudget.result/3"
     assert data["wavelengths_nm"] == pytest.approx([1310.0, 1550.0])
     assert data["rows"][0]["loss_db"] == {"typ": [1.0, 1.0], "worst": [2.0, 2.0], "best": [1.0, 1.0]}
     assert data["margin_db"]["worst"] == [18.0, 18.0]
     assert data["closes"] is True
     assert data["cautions"]
+
+
+def test_result_rows_carry_losses_whose_running_sum_is_the_power_after_each_row():
+    # Hand sums: source 0 dBm (the test link's), elements of 1 dB and 2.5 dB (worst case 2 dB and
+    # 3 dB): power after them 0 - 1 = -1 and -1 - 2.5 = -3.5 dBm, worst -2 and -5 dBm.
+    result = evaluate("  - {kind: element, name: first, loss: {typ: 1 dB, max: 2 dB}}\n"
+                      "  - {kind: element, name: second, loss: {typ: 2.5 dB, max: 3 dB}}")
+    data = linkbudget.result_dict(result)
+    assert all("power_after_dbm" not in row and "cumulative_loss_db" not in row for row in data["rows"])
+    for case, expected in {"typ": [-1.0, -3.5], "worst": [-2.0, -5.0]}.items():
+        losses = np.array([row["loss_db"][case] for row in data["rows"]])
+        power_after = np.array(data["source_dbm"][case]) - np.cumsum(losses, axis=0)  # docs/json-result.md
+        assert_allclose(power_after[:, 0], expected, atol=1e-9)
+        assert_allclose(power_after[-1], data["received_dbm"][case], atol=1e-9)
 
 
 def test_engine_holds_no_kind_names_class_flags_or_probes():

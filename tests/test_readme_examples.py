@@ -490,10 +490,10 @@ def test_readme_gain_note():
 
 
 def test_readme_json_result_strings():
-    readme_says('Its core: `schema` (`"linkbudget.result/2"`)')
+    readme_says('Its core: `schema` (`"linkbudget.result/3"`)')
     readme_says('(in the JSON result, among the row\'s `facts`: `"beam not evaluated: no launched beam or\nreceiving side"`)')
     data = run_json(readme_link(yaml_block("name: tilted window")))
-    assert data["schema"] == "linkbudget.result/2"
+    assert data["schema"] == "linkbudget.result/3"
     (space,) = rows(data, "air space")
     assert space["facts"] == ["beam not evaluated: no launched beam or receiving side"]
     readme_says("the row holds the ambient extinction alone and says\n`beam not evaluated`")

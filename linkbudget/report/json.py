@@ -1,6 +1,6 @@
 """The JSON result: a versioned, documented contract other tools read.
 
-Schema ``linkbudget.result/2`` (documented in ``docs/json-result.md``). Every per-wavelength
+Schema ``linkbudget.result/3`` (documented in ``docs/json-result.md``). Every per-wavelength
 value is a list over ``wavelengths_nm``; every budget quantity is an object keyed by case
 (``typ``, ``worst``, ``best``). Numbers are rounded to a fixed resolution so that a result
 diffs cleanly (:data:`DB_RESOLUTION_DECIMALS`, :data:`WAVELENGTH_RESOLUTION_DECIMALS`). A null
@@ -20,7 +20,7 @@ import numpy as np
 from linkbudget import __version__
 from linkbudget.segments.cases import CASES
 
-SCHEMA = "linkbudget.result/2"
+SCHEMA = "linkbudget.result/3"
 
 #: Decimals of every dB and dBm number written (1e-9 dB).
 DB_RESOLUTION_DECIMALS = 9
@@ -123,8 +123,6 @@ def _row_document(result, index):
         "origin": list(row.origin),
         **({"part": {"name": row.part.name, "file": row.part.file}} if row.part is not None else {}),
         "loss_db": _by_case(result.loss_db, index),
-        "cumulative_loss_db": _by_case(result.cumulative_loss_db, index),
-        "power_after_dbm": _by_case(result.power_after_dbm, index),
         **_present({"loss_parts_db": _values(row.loss_parts_db),
                     "geometric_estimate_db": _values(row.geometric_estimate_db),
                     "reflectance": _values(row.reflectance, FRACTION_RESOLUTION_DECIMALS),
