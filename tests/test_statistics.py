@@ -249,8 +249,13 @@ def test_check_gates_on_the_yield(cwdm):
     gate = ["check", str(cwdm), "--trials", "2000", "--min-margin", "31 dB", "--min-yield"]
     passed = RUNNER.invoke(app, [*gate, "10%"])
     assert passed.exit_code == 0 and passed.stdout.startswith("PASS"), passed.output
+    # the worst case does not close at 31 dB, but the summary counts what the gate judged: the yield
+    assert passed.stdout.splitlines()[-1] == "1 link(s): 1 reach the least yield, 0 fall short of it, 0 with input errors"
     failed = RUNNER.invoke(app, [*gate, "0.9"])
     assert failed.exit_code == 1 and failed.stdout.startswith("FAIL"), failed.output
+    assert "0 reach the least yield, 1 fall short of it" in failed.stdout.splitlines()[-1]
+    summary = json.loads(RUNNER.invoke(app, [*gate, "10%", "--format", "json"]).stdout)["summary"]
+    assert (summary["close"], summary["do_not_close"], summary["judged_by"]) == (1, 0, "yield")
     for bad in (["--min-yield", "150%"], ["--min-yield", "most"], ["--min-yield", "99%"], ["--trials", "1"],
                 ["--seed", "4"]):
         result = RUNNER.invoke(app, ["check", str(cwdm), *bad])

@@ -49,14 +49,19 @@ class CheckOutcome:
     @property
     def reasons(self):
         """What fails, in words (empty for a link that passes or does not load)."""
-        if self.result is None:
-            return []
-        if self.least_yield is not None:
-            reached = self.result.statistics.yield_fraction >= self.least_yield
-            budget = [] if reached else ["yield below the least asked"]
-        else:
-            budget = budget_reasons(self.result)
-        return budget + list(self.failures)
+        return [] if self.result is None else self._budget_reasons() + list(self.failures)
+
+    @property
+    def budget_passes(self):
+        """The link loaded and its budget passes: it closes, or with ``--min-yield`` its yield
+        reaches the least asked (the gates of its review aside)."""
+        return self.result is not None and not self._budget_reasons()
+
+    def _budget_reasons(self):
+        if self.least_yield is None:
+            return budget_reasons(self.result)
+        reached = self.result.statistics.yield_fraction >= self.least_yield
+        return [] if reached else ["yield below the least asked"]
 
     @property
     def worst_margin_db(self):
@@ -76,10 +81,17 @@ class CheckOutcome:
 
 
 def counts(outcomes):
-    """(links, close, do not close, input errors)."""
-    results = [outcome.result for outcome in outcomes if outcome.result is not None]
-    closes = sum(result.closes for result in results)
-    return len(outcomes), closes, len(results) - closes, len(outcomes) - len(results)
+    """(links, whose budget passes, whose budget fails, input errors): a budget passes when the
+    link closes, or with ``--min-yield`` when its yield reaches the least asked
+    (:attr:`CheckOutcome.budget_passes`), so that the counts follow the per-link lines."""
+    loaded = [outcome for outcome in outcomes if outcome.result is not None]
+    passes = sum(outcome.budget_passes for outcome in loaded)
+    return len(outcomes), passes, len(loaded) - passes, len(outcomes) - len(loaded)
+
+
+def _by_yield(outcomes):
+    """Whether the budgets are judged by their yield (``--min-yield``) rather than closing."""
+    return any(outcome.least_yield is not None for outcome in outcomes)
 
 
 def gated(outcomes):
@@ -94,7 +106,7 @@ def failed(outcomes):
 
 def summary_line(outcomes):
     """The gate's last line."""
-    return check_summary(*counts(outcomes), gated(outcomes))
+    return check_summary(*counts(outcomes), gated(outcomes), by_yield=_by_yield(outcomes))
 
 
 def render_lines(outcomes):
@@ -106,7 +118,8 @@ def render_markdown(outcomes):
     """A Markdown table of the links for a pull-request comment (errors in full, escaped)."""
     count, closes, fails, broken = counts(outcomes)
     mark = "✅" if failed(outcomes) == broken == 0 else "❌"
-    lines = [f"### {mark} linkbudget check: {closes} of {count} link(s) close", ""]
+    verb = "reach the least yield" if _by_yield(outcomes) else "close"
+    lines = [f"### {mark} linkbudget check: {closes} of {count} link(s) {verb}", ""]
     rows = [[markdown_text(outcome.name), outcome.status.upper(),
              ", ".join(outcome.reasons) if outcome.result is not None
              else "<br>".join(markdown_text(line) for line in outcome.error.splitlines()),
@@ -139,6 +152,7 @@ def check_dict(outcomes, required_margin_db=None):
                                                                               DB_RESOLUTION_DECIMALS),
             "links": [entry(outcome) for outcome in outcomes],
             "summary": {"links": count, "close": closes, "do_not_close": fails, "input_errors": broken,
+                        "judged_by": "yield" if _by_yield(outcomes) else "closing",
                         "fail_a_gate": gated(outcomes)}}
 
 

@@ -139,7 +139,10 @@ def check_error_line(path):
     return f"ERROR  {escaped(path)}: input error"
 
 
-def check_summary(count, closes, fails, broken, gated=0):
-    """The CI gate's last line; ``gated`` links failed a gate of the review (said when any did)."""
+def check_summary(count, closes, fails, broken, gated=0, *, by_yield=False):
+    """The CI gate's last line; ``gated`` links failed a gate of the review (said when any did);
+    ``by_yield``: the budgets were judged by their yield (``--min-yield``), not by closing."""
     gates = f", {gated} fail a safety, back-reflection or PDL gate" if gated else ""
-    return f"{count} link(s): {closes} close, {fails} do not close{gates}, {broken} with input errors"
+    budget = (f"{closes} reach the least yield, {fails} fall short of it" if by_yield
+              else f"{closes} close, {fails} do not close")
+    return f"{count} link(s): {budget}{gates}, {broken} with input errors"

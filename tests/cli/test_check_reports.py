@@ -107,7 +107,8 @@ def test_check_json_report(cli, folder):
     assert by_status["fail"]["worst_margin_db"] == pytest.approx(-0.5, abs=1e-9)
     assert by_status["fail"]["reasons"] == ["margin short"]
     assert by_status["error"]["closes"] is None and "wavelength" in by_status["error"]["error"]
-    assert document["summary"] == {"links": 4, "close": 2, "do_not_close": 1, "input_errors": 1, "fail_a_gate": 0}
+    assert document["summary"] == {"links": 4, "close": 2, "do_not_close": 1, "input_errors": 1, "judged_by": "closing",
+                                   "fail_a_gate": 0}
 
 
 def test_check_markdown_report_to_file(cli, folder):
