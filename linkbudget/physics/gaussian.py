@@ -27,7 +27,6 @@ References
    and ray matrices; chapter numbers from memory: ch. 15 and 17).
 """
 
-import functools
 
 import numpy as np
 
@@ -555,23 +554,47 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     (d_low, d_high), (t_low, t_high) = (sorted(non_negative(pair, name)) for pair, name in
                                         ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
     u_least, u_largest = cosine_range
-    k_sq = np.asarray(wavenumber_per_m) ** 2
+    k_sq = np.square(wavenumber_per_m)
     sum_sq = w1_sq + w2_sq
-    inverse_s_sq = 1.0 / (sum_sq**2 + 4.0 * gap_m**2 / k_sq)
-    w2_sq_h = w2_sq * gap_m**2 + (w1_sq * w2_sq * sum_sq / 4.0) * k_sq  # w2²H
+    # Every array over the inputs' broadcast shape is computed in place: fresh temporaries of a
+    # long sweep cost more than the arithmetic.
+    shape = np.broadcast_shapes(sum_sq.shape, gap_m.shape, k_sq.shape)
+    inverse_s_sq = np.divide(4.0 * gap_m**2, k_sq, out=np.empty(shape))
+    inverse_s_sq += sum_sq**2
+    np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
+    w2_sq_h = np.multiply(w1_sq * w2_sq * sum_sq / 4.0, k_sq, out=np.empty(shape))  # w2²H
+    w2_sq_h += w2_sq * gap_m**2
     cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
 
-    def quadratic(d, theta, u):  # Q at the box point (d, θ) and the cosine u
-        return (sum_sq * d**2 - u * cross * theta * d) + w2_sq_h * theta**2
+    def quadratic(d, theta, u, out):  # Q at the box point (d, θ) (θ one value) and the cosine u, into out
+        np.multiply(w2_sq_h, theta**2, out=out)
+        out += sum_sq * d**2 - u * cross * theta * d
+        return out
 
     corners = [(d_high, t_high)] if u_least <= 0 else [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
-    most = functools.reduce(np.maximum, (quadratic(d, t, u_least) for d, t in corners))
-    fewest = quadratic(np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high), t_low, u_largest)
-    if u_largest * d_low > 0:
-        t_star = np.clip(u_largest * cross * d_low / (2.0 * w2_sq_h), t_low, t_high)
-        fewest = np.minimum(fewest, quadratic(d_low, t_star, u_largest))
-    scale = 4.0 * w1_sq * w2_sq * inverse_s_sq
-    return scale * np.exp(-2.0 * inverse_s_sq * most), scale * np.exp(-2.0 * inverse_s_sq * fewest)
+    most, other = quadratic(*corners[0], u_least, np.empty(shape)), np.empty(shape)
+    for d, t in corners[1:]:
+        np.maximum(most, quadratic(d, t, u_least, other), out=most)
+    fewest = quadratic(np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high), t_low, u_largest,
+                       np.empty(shape))
+    if u_largest * d_low > 0:  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H): Q there, into other
+        t_star = np.multiply(2.0, w2_sq_h, out=np.empty(shape))
+        np.divide(u_largest * cross * d_low, t_star, out=t_star)
+        np.clip(t_star, t_low, t_high, out=t_star)
+        np.multiply(u_largest * cross, t_star, out=other)
+        other *= d_low
+        np.subtract(sum_sq * d_low**2, other, out=other)
+        np.square(t_star, out=t_star)
+        t_star *= w2_sq_h
+        other += t_star
+        np.minimum(fewest, other, out=fewest)
+    scale = np.multiply(4.0 * w1_sq * w2_sq, inverse_s_sq, out=other)
+    inverse_s_sq *= -2.0
+    for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
+        exponent *= inverse_s_sq
+        np.exp(exponent, out=exponent)
+        exponent *= scale
+    return most, fewest
 
 
 def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_across_m, wavelength_m, *,
