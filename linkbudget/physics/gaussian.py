@@ -457,8 +457,13 @@ def coupling_efficiency_1d(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0
     """
     offset_m = finite(offset_m, "offset")
     tilt_rad = finite(tilt_rad, "tilt")
-    prefactor, offset_term, cross_term, tilt_term = misalignment_terms(w1_m, w2_m, wavelength_m,
-                                                                       separation_m=separation_m, n=n)
+    return _axis_efficiency(misalignment_terms(w1_m, w2_m, wavelength_m, separation_m=separation_m, n=n),
+                            offset_m, tilt_rad)
+
+
+def _axis_efficiency(terms, offset_m, tilt_rad):
+    """η_x = P·exp(−2·(A·d² − B·θ·d + C·θ²)) from the (P, A, B, C) of :func:`misalignment_terms`."""
+    prefactor, offset_term, cross_term, tilt_term = terms
     return prefactor * np.exp(-2.0 * (offset_term * offset_m**2 - cross_term * tilt_rad * offset_m
                                       + tilt_term * tilt_rad**2))
 
@@ -629,8 +634,9 @@ def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_acr
     Returns
     -------
     numpy.ndarray
-        η = η_along(d, θ·cos ψ)·η_across(0, θ·sin ψ), each factor from
-        :func:`coupling_efficiency_1d`.
+        η = η_along(d, θ·cos ψ)·η_across(0, θ·sin ψ), each factor that of
+        :func:`coupling_efficiency_1d` (the two share their :func:`misalignment_terms` when both
+        modes give the same radii, the same arrays, along and across).
 
     Notes
     -----
@@ -653,10 +659,14 @@ def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_acr
         raise ValueError("an azimuth cosine lies in [-1, 1]")
     common = dict(separation_m=separation_m, n=n)
     tilt_rad = finite(tilt_rad, "tilt")
-    along = coupling_efficiency_1d(w1_along_m, w2_along_m, wavelength_m, offset_m=offset_m,
-                                   tilt_rad=tilt_rad * cosine, **common)
-    across = coupling_efficiency_1d(w1_across_m, w2_across_m, wavelength_m,
-                                    tilt_rad=tilt_rad * np.sqrt(1.0 - cosine**2), **common)
+    offset_m = finite(offset_m, "offset")
+    along_terms = misalignment_terms(w1_along_m, w2_along_m, wavelength_m, **common)
+    if w1_across_m is w1_along_m and w2_across_m is w2_along_m:  # circular modes: one set of terms
+        across_terms = along_terms
+    else:
+        across_terms = misalignment_terms(w1_across_m, w2_across_m, wavelength_m, **common)
+    along = _axis_efficiency(along_terms, offset_m, tilt_rad * cosine)
+    across = _axis_efficiency(across_terms, 0.0, tilt_rad * np.sqrt(1.0 - cosine**2))
     return along * across
 
 
