@@ -508,9 +508,16 @@ def wavenumber_per_m(wavelength_m, *, n=1.0):
     return 2.0 * np.pi * positive(n, "refractive index") / positive(wavelength_m, "wavelength")
 
 
+#: Candidate-by-wavelength values :func:`circular_coupling_extremes` evaluates at once: its five
+#: buffers of that size are reused from block to block and stay in the cache (fresh arrays over a
+#: long sweep cost more in page faults than their arithmetic).
+_BLOCK_VALUES = 1 << 15
+
+
 def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, offset_range_m, tilt_range_rad,
                                cosine_range):
-    """(least, largest) coupling of two circular Gaussian modes over a box of offsets and tilts.
+    """(least, largest) coupling of two circular Gaussian modes over a box of offsets and tilts and
+    over candidate mode sizes and separations.
 
     Both axes of :func:`coupling_efficiency_1d` together give, for an offset d along x and a tilt
     θ turned at azimuth ψ from it (u = cos ψ),
@@ -530,15 +537,18 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
       range (where ∂Q/∂d = 0 or ∂Q/∂θ = 0; on the far edges both derivatives are positive, as
       4AC − B² > 0 in :func:`misalignment_terms`).
 
+    The least and the largest are then taken over the candidates too, in blocks of wavelengths,
+    so the memory is O(wavelengths) whatever the number of candidates.
+
     Parameters
     ----------
-    w1_m, w2_m : array_like
-        Mode-field radii of the launched and the receiving mode [m].
-    wavenumber_per_m : array_like
+    w1_m, w2_m : numpy.ndarray, shape (candidates, 1) or (candidates, wavelengths)
+        Mode-field radii of the launched and the receiving mode [m], one row per candidate (a
+        length-one wavelength axis for a radius that is the same at every wavelength).
+    wavenumber_per_m : numpy.ndarray, shape (wavelengths,)
         k = 2πn/λ in the gap medium (:func:`wavenumber_per_m`).
-    separation_m : array_like
-        Axial distance D between the waists [m]; the radii, the wavenumber and the separation
-        broadcast together (e.g. candidates × wavelengths).
+    separation_m : numpy.ndarray, shape (candidates, 1) or (candidates, wavelengths)
+        Axial distance D between the waists [m], one row per candidate.
     offset_range_m, tilt_range_rad : (float, float)
         (low, high) of the offset [m] and of the tilt [rad], both ≥ 0.
     cosine_range : (float, float)
@@ -547,7 +557,7 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     Returns
     -------
     (numpy.ndarray, numpy.ndarray)
-        The least and the largest η over the box, broadcast over the inputs.
+        The least and the largest η over the box and the candidates, shape (wavelengths,).
 
     References
     ----------
@@ -559,47 +569,76 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     (d_low, d_high), (t_low, t_high) = (sorted(non_negative(pair, name)) for pair, name in
                                         ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
     u_least, u_largest = cosine_range
-    k_sq = np.square(wavenumber_per_m)
+    # What does not depend on the wavenumber, once: |S|² = Σ² + gap_term/k², w2²H = h_0 + h_k·k²,
+    # and Q at a box point = fixed + w2²H·θ² (θ one value), from its fixed part and θ².
     sum_sq = w1_sq + w2_sq
-    # Every array over the inputs' broadcast shape is computed in place: fresh temporaries of a
-    # long sweep cost more than the arithmetic.
-    shape = np.broadcast_shapes(sum_sq.shape, gap_m.shape, k_sq.shape)
-    inverse_s_sq = np.divide(4.0 * gap_m**2, k_sq, out=np.empty(shape))
-    inverse_s_sq += sum_sq**2
-    np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
-    w2_sq_h = np.multiply(w1_sq * w2_sq * sum_sq / 4.0, k_sq, out=np.empty(shape))  # w2²H
-    w2_sq_h += w2_sq * gap_m**2
     cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
-
-    def quadratic(d, theta, u, out):  # Q at the box point (d, θ) (θ one value) and the cosine u, into out
-        np.multiply(w2_sq_h, theta**2, out=out)
-        out += sum_sq * d**2 - u * cross * theta * d
-        return out
-
     corners = [(d_high, t_high)] if u_least <= 0 else [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
-    most, other = quadratic(*corners[0], u_least, np.empty(shape)), np.empty(shape)
-    for d, t in corners[1:]:
-        np.maximum(most, quadratic(d, t, u_least, other), out=most)
-    fewest = quadratic(np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high), t_low, u_largest,
-                       np.empty(shape))
-    if u_largest * d_low > 0:  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H): Q there, into other
-        t_star = np.multiply(2.0, w2_sq_h, out=np.empty(shape))
-        np.divide(u_largest * cross * d_low, t_star, out=t_star)
-        np.clip(t_star, t_low, t_high, out=t_star)
-        np.multiply(u_largest * cross, t_star, out=other)
-        other *= d_low
-        np.subtract(sum_sq * d_low**2, other, out=other)
-        np.square(t_star, out=t_star)
-        t_star *= w2_sq_h
-        other += t_star
-        np.minimum(fewest, other, out=fewest)
-    scale = np.multiply(4.0 * w1_sq * w2_sq, inverse_s_sq, out=other)
-    inverse_s_sq *= -2.0
-    for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
-        exponent *= inverse_s_sq
-        np.exp(exponent, out=exponent)
-        exponent *= scale
-    return most, fewest
+    d_star = np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high)
+    low_offset_cross = u_largest * cross
+    per_candidate = dict(
+        sum_sq_sq=sum_sq**2, gap_term=4.0 * gap_m**2, h_k=w1_sq * w2_sq * sum_sq / 4.0, h_0=w2_sq * gap_m**2,
+        scale_factor=4.0 * w1_sq * w2_sq,  # η = scale_factor/|S|² · exp(−2·Q/|S|²)
+        low_tilt_fixed=sum_sq * d_star**2 - u_largest * cross * t_low * d_star,
+        low_offset_cross=low_offset_cross, low_offset_numerator=low_offset_cross * d_low,
+        low_offset_fixed=sum_sq * d_low**2)
+    corner_fixed = [sum_sq * d**2 - u_least * cross * t * d for d, t in corners]
+    corner_theta_sq = [t**2 for _, t in corners]
+    on_low_offset = u_largest * d_low > 0  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H)
+
+    k_sq = np.square(wavenumber_per_m)
+    points = k_sq.shape[-1]
+    candidates = np.broadcast_shapes(w1_sq.shape, w2_sq.shape, gap_m.shape)[0]
+    width = min(points, max(1, _BLOCK_VALUES // candidates))
+    buffers = np.empty((5, candidates, width))
+    least, largest = np.empty(points), np.empty(points)
+    for start in range(0, points, width):
+        block = slice(start, start + width)
+        part = {name: _over_block(values, block) for name, values in per_candidate.items()}
+        inverse_s_sq, w2_sq_h, most, fewest, other = buffers[:, :, :min(width, points - start)]
+        k_sq_block = k_sq[block]
+        np.divide(part["gap_term"], k_sq_block, out=inverse_s_sq)
+        inverse_s_sq += part["sum_sq_sq"]
+        np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
+        np.multiply(part["h_k"], k_sq_block, out=w2_sq_h)
+        w2_sq_h += part["h_0"]
+        _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
+        if on_low_offset:
+            t_star = most  # scratch until the corners are evaluated
+            np.multiply(2.0, w2_sq_h, out=t_star)
+            np.divide(part["low_offset_numerator"], t_star, out=t_star)
+            np.clip(t_star, t_low, t_high, out=t_star)
+            np.multiply(part["low_offset_cross"], t_star, out=other)
+            other *= d_low
+            np.subtract(part["low_offset_fixed"], other, out=other)
+            np.square(t_star, out=t_star)
+            t_star *= w2_sq_h
+            other += t_star
+            np.minimum(fewest, other, out=fewest)
+        _quadratic_into(most, w2_sq_h, _over_block(corner_fixed[0], block), corner_theta_sq[0])
+        for fixed, theta_sq in zip(corner_fixed[1:], corner_theta_sq[1:], strict=True):
+            np.maximum(most, _quadratic_into(other, w2_sq_h, _over_block(fixed, block), theta_sq), out=most)
+        scale = np.multiply(part["scale_factor"], inverse_s_sq, out=w2_sq_h)
+        inverse_s_sq *= -2.0
+        for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
+            exponent *= inverse_s_sq
+            np.exp(exponent, out=exponent)
+            exponent *= scale
+        np.min(most, axis=0, out=least[block])
+        np.max(fewest, axis=0, out=largest[block])
+    return least, largest
+
+
+def _over_block(values, block):
+    """A candidate value over a block of wavelengths (the same in every block when constant)."""
+    return values if values.shape[-1] == 1 else values[:, block]
+
+
+def _quadratic_into(out, w2_sq_h, fixed, theta_sq):
+    """Q = fixed + w2²H·θ² at a box point (:func:`circular_coupling_extremes`), into ``out``."""
+    np.multiply(w2_sq_h, theta_sq, out=out)
+    out += fixed
+    return out
 
 
 def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_across_m, wavelength_m, *,

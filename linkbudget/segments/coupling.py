@@ -203,14 +203,9 @@ def _span(spread):
     return ends[0], ends[-1]
 
 
-#: Wavelengths the closed-form search evaluates at once: its candidates-by-wavelengths
-#: temporaries stay in the cache and are reused instead of being mapped afresh on a long sweep.
-_BLOCK_POINTS = 8192
-
-
 def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling between circular modes: the closed form over offset, tilt and
-    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) at every candidate
+    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) over every candidate
     of mode sizes and separation at once, in blocks of wavelengths, so memory is O(wavelengths)."""
     given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
     box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
@@ -219,12 +214,7 @@ def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n,
     candidates = [(w1, w2, z) for (w1, _), (w2, _), z in itertools.product(
         *_both_candidates(before, after), _ends(separation))]
     w1, w2, gap = (_candidate_axis(values) for values in zip(*candidates, strict=True))
-    least, largest = np.empty_like(wavenumber), np.empty_like(wavenumber)
-    for start in range(0, wavenumber.shape[-1], _BLOCK_POINTS):
-        block = slice(start, start + _BLOCK_POINTS)
-        low, high = gaussian.circular_coupling_extremes(_in_block(w1, block), _in_block(w2, block),
-                                                        wavenumber[block], separation_m=_in_block(gap, block), **box)
-        least[block], largest[block] = low.min(axis=0), high.max(axis=0)
+    least, largest = gaussian.circular_coupling_extremes(w1, w2, wavenumber.reshape(-1), separation_m=gap, **box)
     return least.reshape(np.shape(wavelength_m)), largest.reshape(np.shape(wavelength_m))
 
 
@@ -233,11 +223,6 @@ def _candidate_axis(values):
     (candidates, wavelengths)."""
     arrays = np.broadcast_arrays(*(np.asarray(value, dtype=float) for value in values))
     return np.stack(arrays).reshape(len(arrays), -1)
-
-
-def _in_block(values, block):
-    """Candidate values over this block of wavelengths (a constant is the same in every block)."""
-    return values if values.shape[-1] == 1 else values[:, block]
 
 
 def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
