@@ -603,10 +603,12 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
         np.multiply(part["h_k"], k_sq_block, out=w2_sq_h)
         w2_sq_h += part["h_0"]
         _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
+        t_star = most  # scratch until the corners are evaluated
         if on_low_offset:
-            t_star = most  # scratch until the corners are evaluated
             np.multiply(2.0, w2_sq_h, out=t_star)
             np.divide(part["low_offset_numerator"], t_star, out=t_star)
+        # θ* at or below θ_low puts the edge's least Q at (d_low, θ_low), on the edge θ = θ_low already searched
+        if on_low_offset and np.any(t_star > t_low):
             np.clip(t_star, t_low, t_high, out=t_star)
             np.multiply(part["low_offset_cross"], t_star, out=other)
             other *= d_low
