@@ -538,17 +538,20 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
       4AC − B² > 0 in :func:`misalignment_terms`).
 
     The least and the largest are then taken over the candidates too, in blocks of wavelengths,
-    so the memory is O(wavelengths) whatever the number of candidates.
+    so the memory is that of the inputs and a few blocks, whatever the number of candidates.
 
     Parameters
     ----------
-    w1_m, w2_m : numpy.ndarray, shape (candidates, 1) or (candidates, wavelengths)
-        Mode-field radii of the launched and the receiving mode [m], one row per candidate (a
-        length-one wavelength axis for a radius that is the same at every wavelength).
+    w1_m, w2_m : numpy.ndarray
+        Mode-field radii of the launched and the receiving mode [m]. Every axis but the last is a
+        candidate axis; the last is the wavelength axis, of length one for a radius that is the
+        same at every wavelength (e.g. shape (before candidates, 1, 1, 1) and
+        (1, after candidates, 1, wavelengths)).
     wavenumber_per_m : numpy.ndarray, shape (wavelengths,)
         k = 2πn/λ in the gap medium (:func:`wavenumber_per_m`).
-    separation_m : numpy.ndarray, shape (candidates, 1) or (candidates, wavelengths)
-        Axial distance D between the waists [m], one row per candidate.
+    separation_m : numpy.ndarray
+        Axial distance D between the waists [m], on candidate axes and a last wavelength axis as
+        the radii; the three broadcast together.
     offset_range_m, tilt_range_rad : (float, float)
         (low, high) of the offset [m] and of the tilt [rad], both ≥ 0.
     cosine_range : (float, float)
@@ -568,34 +571,25 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     gap_m = non_negative(separation_m, "separation")
     (d_low, d_high), (t_low, t_high) = (sorted(non_negative(pair, name)) for pair, name in
                                         ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
-    u_least, u_largest = cosine_range
-    # What does not depend on the wavenumber, once: |S|² = Σ² + gap_term/k², w2²H = h_0 + h_k·k²,
-    # and Q at a box point = fixed + w2²H·θ² (θ one value), from its fixed part and θ².
-    sum_sq = w1_sq + w2_sq
-    cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
-    corners = [(d_high, t_high)] if u_least <= 0 else [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
-    d_star = np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high)
-    low_offset_cross = u_largest * cross
-    per_candidate = dict(
-        sum_sq_sq=sum_sq**2, gap_term=4.0 * gap_m**2, h_k=w1_sq * w2_sq * sum_sq / 4.0, h_0=w2_sq * gap_m**2,
-        scale_factor=4.0 * w1_sq * w2_sq,  # η = scale_factor/|S|² · exp(−2·Q/|S|²)
-        low_tilt_fixed=sum_sq * d_star**2 - u_largest * cross * t_low * d_star,
-        low_offset_cross=low_offset_cross, low_offset_numerator=low_offset_cross * d_low,
-        low_offset_fixed=sum_sq * d_low**2)
-    corner_fixed = [sum_sq * d**2 - u_least * cross * t * d for d, t in corners]
-    corner_theta_sq = [t**2 for _, t in corners]
-    on_low_offset = u_largest * d_low > 0  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H)
+    box = (d_low, d_high, t_low, t_high, *cosine_range)
+    corners = _extreme_corners(*box)
+    on_low_offset = cosine_range[1] * d_low > 0  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H)
+    inputs = (w1_sq, w2_sq, gap_m)
+    constant = all(values.shape[-1] == 1 for values in inputs)
+    terms = _closed_form_terms(*inputs, box, corners) if constant else None
 
     k_sq = np.square(wavenumber_per_m)
     points = k_sq.shape[-1]
-    candidates = np.broadcast_shapes(w1_sq.shape, w2_sq.shape, gap_m.shape)[0]
-    width = min(points, max(1, _BLOCK_VALUES // candidates))
-    buffers = np.empty((5, candidates, width))
+    candidates = np.broadcast_shapes(*(values.shape[:-1] for values in inputs))
+    candidate_axes = tuple(range(len(candidates)))
+    width = min(points, max(1, _BLOCK_VALUES // max(1, int(np.prod(candidates)))))
+    buffers = np.empty((5, *candidates, width))
     least, largest = np.empty(points), np.empty(points)
     for start in range(0, points, width):
         block = slice(start, start + width)
-        part = {name: _over_block(values, block) for name, values in per_candidate.items()}
-        inverse_s_sq, w2_sq_h, most, fewest, other = buffers[:, :, :min(width, points - start)]
+        part = terms if constant else _closed_form_terms(*(_over_block(values, block) for values in inputs), box,
+                                                         corners)
+        inverse_s_sq, w2_sq_h, most, fewest, other = buffers[..., :min(width, points - start)]
         k_sq_block = k_sq[block]
         np.divide(part["gap_term"], k_sq_block, out=inverse_s_sq)
         inverse_s_sq += part["sum_sq_sq"]
@@ -617,23 +611,48 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
             t_star *= w2_sq_h
             other += t_star
             np.minimum(fewest, other, out=fewest)
-        _quadratic_into(most, w2_sq_h, _over_block(corner_fixed[0], block), corner_theta_sq[0])
-        for fixed, theta_sq in zip(corner_fixed[1:], corner_theta_sq[1:], strict=True):
-            np.maximum(most, _quadratic_into(other, w2_sq_h, _over_block(fixed, block), theta_sq), out=most)
+        (_, first_tilt), *others = corners
+        _quadratic_into(most, w2_sq_h, part["corner_fixed"][0], first_tilt**2)
+        for fixed, (_, tilt_rad) in zip(part["corner_fixed"][1:], others, strict=True):
+            np.maximum(most, _quadratic_into(other, w2_sq_h, fixed, tilt_rad**2), out=most)
         scale = np.multiply(part["scale_factor"], inverse_s_sq, out=w2_sq_h)
         inverse_s_sq *= -2.0
         for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
             exponent *= inverse_s_sq
             np.exp(exponent, out=exponent)
             exponent *= scale
-        np.min(most, axis=0, out=least[block])
-        np.max(fewest, axis=0, out=largest[block])
+        np.min(most, axis=candidate_axes, out=least[block])
+        np.max(fewest, axis=candidate_axes, out=largest[block])
     return least, largest
 
 
+def _extreme_corners(d_low, d_high, t_low, t_high, u_least, u_largest):
+    """The (offset, tilt) corners where Q can be largest (:func:`circular_coupling_extremes`)."""
+    if u_least <= 0:
+        return [(d_high, t_high)]
+    return [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
+
+
+def _closed_form_terms(w1_sq, w2_sq, gap_m, box, corners):
+    """What :func:`circular_coupling_extremes` needs that does not depend on the wavenumber:
+    |S|² = Σ² + gap_term/k², w2²H = h_0 + h_k·k², η = scale_factor/|S|²·exp(−2·Q/|S|²), and Q at
+    a box point = fixed + w2²H·θ², by the fixed part of each point."""
+    d_low, d_high, t_low, _, u_least, u_largest = box
+    sum_sq = w1_sq + w2_sq
+    cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
+    d_star = np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high)
+    low_offset_cross = u_largest * cross
+    return dict(sum_sq_sq=sum_sq**2, gap_term=4.0 * gap_m**2, h_k=w1_sq * w2_sq * sum_sq / 4.0,
+                h_0=w2_sq * gap_m**2, scale_factor=4.0 * w1_sq * w2_sq,
+                low_tilt_fixed=sum_sq * d_star**2 - u_largest * cross * t_low * d_star,
+                low_offset_cross=low_offset_cross, low_offset_numerator=low_offset_cross * d_low,
+                low_offset_fixed=sum_sq * d_low**2,
+                corner_fixed=[sum_sq * d**2 - u_least * cross * t * d for d, t in corners])
+
+
 def _over_block(values, block):
-    """A candidate value over a block of wavelengths (the same in every block when constant)."""
-    return values if values.shape[-1] == 1 else values[:, block]
+    """Values over a block of wavelengths, the last axis (the same in every block when constant)."""
+    return values if values.shape[-1] == 1 else values[..., block]
 
 
 def _quadratic_into(out, w2_sq_h, fixed, theta_sq):

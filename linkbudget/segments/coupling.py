@@ -206,14 +206,15 @@ def _span(spread):
 def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling between circular modes: the closed form over offset, tilt and
     azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) over every candidate
-    of mode sizes and separation at once, in blocks of wavelengths, so memory is O(wavelengths)."""
+    of mode sizes and separation at once (one candidate axis each), in blocks of wavelengths, so
+    memory is O(wavelengths)."""
     given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
     box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
                cosine_range=(-1.0, 1.0) if given is None else (given, given))
     wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
-    candidates = [(w1, w2, z) for (w1, _), (w2, _), z in itertools.product(
-        *_both_candidates(before, after), _ends(separation))]
-    w1, w2, gap = (_candidate_axis(values) for values in zip(*candidates, strict=True))
+    before_sizes, after_sizes = ([x for x, _ in candidates] for candidates in _both_candidates(before, after))
+    w1, w2 = _candidate_axis(before_sizes)[:, None, None], _candidate_axis(after_sizes)[None, :, None]
+    gap = np.array(_ends(separation), dtype=float)[None, None, :, None]
     least, largest = gaussian.circular_coupling_extremes(w1, w2, wavenumber.reshape(-1), separation_m=gap, **box)
     return least.reshape(np.shape(wavelength_m)), largest.reshape(np.shape(wavelength_m))
 
