@@ -573,12 +573,16 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
                                         ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
     box = (d_low, d_high, t_low, t_high, *cosine_range)
     corners = _extreme_corners(*box)
-    on_low_offset = cosine_range[1] * d_low > 0  # the edge d = d_low, at θ* = u·cross·d_low/(2·w2²H)
     inputs = (w1_sq, w2_sq, gap_m)
     constant = all(values.shape[-1] == 1 for values in inputs)
     terms = _closed_form_terms(*inputs, box, corners) if constant else None
-
     k_sq = np.square(wavenumber_per_m)
+    # The edge d = d_low, at θ* = u·cross·d_low/(2·w2²H): where θ* ≤ θ_low its least Q is the corner
+    # (d_low, θ_low), on the edge θ = θ_low already searched. With terms the same at every
+    # wavelength, w2²H grows with k², so θ* is largest at the least k².
+    on_low_offset = cosine_range[1] * d_low > 0 and (not constant or np.any(
+        terms["low_offset_numerator"] > 2.0 * t_low * (terms["h_0"] + terms["h_k"] * np.min(k_sq))))
+
     points = k_sq.shape[-1]
     candidates = np.broadcast_shapes(*(values.shape[:-1] for values in inputs))
     candidate_axes = tuple(range(len(candidates)))
@@ -597,12 +601,10 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
         np.multiply(part["h_k"], k_sq_block, out=w2_sq_h)
         w2_sq_h += part["h_0"]
         _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
-        t_star = most  # scratch until the corners are evaluated
         if on_low_offset:
+            t_star = most  # scratch until the corners are evaluated
             np.multiply(2.0, w2_sq_h, out=t_star)
             np.divide(part["low_offset_numerator"], t_star, out=t_star)
-        # θ* at or below θ_low puts the edge's least Q at (d_low, θ_low), on the edge θ = θ_low already searched
-        if on_low_offset and np.any(t_star > t_low):
             np.clip(t_star, t_low, t_high, out=t_star)
             np.multiply(part["low_offset_cross"], t_star, out=other)
             other *= d_low
