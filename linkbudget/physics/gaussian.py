@@ -593,39 +593,48 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
         block = slice(start, start + width)
         part = terms if constant else _closed_form_terms(*(_over_block(values, block) for values in inputs), box,
                                                          corners)
-        inverse_s_sq, w2_sq_h, most, fewest, other = buffers[..., :min(width, points - start)]
-        k_sq_block = k_sq[block]
-        np.divide(part["gap_term"], k_sq_block, out=inverse_s_sq)
-        inverse_s_sq += part["sum_sq_sq"]
-        np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
-        np.multiply(part["h_k"], k_sq_block, out=w2_sq_h)
-        w2_sq_h += part["h_0"]
-        _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
-        if on_low_offset:
-            t_star = most  # scratch until the corners are evaluated
-            np.multiply(2.0, w2_sq_h, out=t_star)
-            np.divide(part["low_offset_numerator"], t_star, out=t_star)
-            np.clip(t_star, t_low, t_high, out=t_star)
-            np.multiply(part["low_offset_cross"], t_star, out=other)
-            other *= d_low
-            np.subtract(part["low_offset_fixed"], other, out=other)
-            np.square(t_star, out=t_star)
-            t_star *= w2_sq_h
-            other += t_star
-            np.minimum(fewest, other, out=fewest)
-        (_, first_tilt), *others = corners
-        _quadratic_into(most, w2_sq_h, part["corner_fixed"][0], first_tilt**2)
-        for fixed, (_, tilt_rad) in zip(part["corner_fixed"][1:], others, strict=True):
-            np.maximum(most, _quadratic_into(other, w2_sq_h, fixed, tilt_rad**2), out=most)
-        scale = np.multiply(part["scale_factor"], inverse_s_sq, out=w2_sq_h)
-        inverse_s_sq *= -2.0
-        for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
-            exponent *= inverse_s_sq
-            np.exp(exponent, out=exponent)
-            exponent *= scale
+        most, fewest = _block_extremes(part, k_sq[block], buffers[..., :min(width, points - start)], box, corners,
+                                       on_low_offset)
         np.min(most, axis=candidate_axes, out=least[block])
         np.max(fewest, axis=candidate_axes, out=largest[block])
     return least, largest
+
+
+def _block_extremes(part, k_sq, buffers, box, corners, on_low_offset):
+    """(least, largest) η of each candidate over one block of wavelengths
+    (:func:`circular_coupling_extremes`), from its :func:`_closed_form_terms` ``part`` and k², computed
+    in place in the five ``buffers`` (two of which it returns)."""
+    d_low, _, t_low, t_high, _, _ = box
+    inverse_s_sq, w2_sq_h, most, fewest, other = buffers
+    np.divide(part["gap_term"], k_sq, out=inverse_s_sq)
+    inverse_s_sq += part["sum_sq_sq"]
+    np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
+    np.multiply(part["h_k"], k_sq, out=w2_sq_h)
+    w2_sq_h += part["h_0"]
+    _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
+    if on_low_offset:  # Q on the edge d = d_low at θ* = u·cross·d_low/(2·w2²H), clipped
+        t_star = most  # scratch until the corners are evaluated
+        np.multiply(2.0, w2_sq_h, out=t_star)
+        np.divide(part["low_offset_numerator"], t_star, out=t_star)
+        np.clip(t_star, t_low, t_high, out=t_star)
+        np.multiply(part["low_offset_cross"], t_star, out=other)
+        other *= d_low
+        np.subtract(part["low_offset_fixed"], other, out=other)
+        np.square(t_star, out=t_star)
+        t_star *= w2_sq_h
+        other += t_star
+        np.minimum(fewest, other, out=fewest)
+    (_, first_tilt), *others = corners
+    _quadratic_into(most, w2_sq_h, part["corner_fixed"][0], first_tilt**2)
+    for fixed, (_, tilt_rad) in zip(part["corner_fixed"][1:], others, strict=True):
+        np.maximum(most, _quadratic_into(other, w2_sq_h, fixed, tilt_rad**2), out=most)
+    scale = np.multiply(part["scale_factor"], inverse_s_sq, out=w2_sq_h)
+    inverse_s_sq *= -2.0
+    for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
+        exponent *= inverse_s_sq
+        np.exp(exponent, out=exponent)
+        exponent *= scale
+    return most, fewest
 
 
 def _extreme_corners(d_low, d_high, t_low, t_high, u_least, u_largest):
