@@ -27,7 +27,6 @@ References
    and ray matrices; chapter numbers from memory: ch. 15 and 17).
 """
 
-import functools
 
 import numpy as np
 
@@ -458,8 +457,13 @@ def coupling_efficiency_1d(w1_m, w2_m, wavelength_m, *, offset_m=0.0, tilt_rad=0
     """
     offset_m = finite(offset_m, "offset")
     tilt_rad = finite(tilt_rad, "tilt")
-    prefactor, offset_term, cross_term, tilt_term = misalignment_terms(w1_m, w2_m, wavelength_m,
-                                                                       separation_m=separation_m, n=n)
+    return _axis_efficiency(misalignment_terms(w1_m, w2_m, wavelength_m, separation_m=separation_m, n=n),
+                            offset_m, tilt_rad)
+
+
+def _axis_efficiency(terms, offset_m, tilt_rad):
+    """η_x = P·exp(−2·(A·d² − B·θ·d + C·θ²)) from the (P, A, B, C) of :func:`misalignment_terms`."""
+    prefactor, offset_term, cross_term, tilt_term = terms
     return prefactor * np.exp(-2.0 * (offset_term * offset_m**2 - cross_term * tilt_rad * offset_m
                                       + tilt_term * tilt_rad**2))
 
@@ -504,9 +508,16 @@ def wavenumber_per_m(wavelength_m, *, n=1.0):
     return 2.0 * np.pi * positive(n, "refractive index") / positive(wavelength_m, "wavelength")
 
 
+#: Candidate-by-wavelength values :func:`circular_coupling_extremes` evaluates at once: its five
+#: buffers of that size are reused from block to block and stay in the cache (fresh arrays over a
+#: long sweep cost more in page faults than their arithmetic).
+_BLOCK_VALUES = 1 << 15
+
+
 def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, offset_range_m, tilt_range_rad,
                                cosine_range):
-    """(least, largest) coupling of two circular Gaussian modes over a box of offsets and tilts.
+    """(least, largest) coupling of two circular Gaussian modes over a box of offsets and tilts and
+    over candidate mode sizes and separations.
 
     Both axes of :func:`coupling_efficiency_1d` together give, for an offset d along x and a tilt
     θ turned at azimuth ψ from it (u = cos ψ),
@@ -526,15 +537,21 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
       range (where ∂Q/∂d = 0 or ∂Q/∂θ = 0; on the far edges both derivatives are positive, as
       4AC − B² > 0 in :func:`misalignment_terms`).
 
+    The least and the largest are then taken over the candidates too, in blocks of wavelengths,
+    so the memory is that of the inputs and a few blocks, whatever the number of candidates.
+
     Parameters
     ----------
-    w1_m, w2_m : array_like
-        Mode-field radii of the launched and the receiving mode [m].
-    wavenumber_per_m : array_like
+    w1_m, w2_m : numpy.ndarray
+        Mode-field radii of the launched and the receiving mode [m]. Every axis but the last is a
+        candidate axis; the last is the wavelength axis, of length one for a radius that is the
+        same at every wavelength (e.g. shape (before candidates, 1, 1, 1) and
+        (1, after candidates, 1, wavelengths)).
+    wavenumber_per_m : numpy.ndarray, shape (wavelengths,)
         k = 2πn/λ in the gap medium (:func:`wavenumber_per_m`).
-    separation_m : array_like
-        Axial distance D between the waists [m]; the radii, the wavenumber and the separation
-        broadcast together (e.g. candidates × wavelengths).
+    separation_m : numpy.ndarray
+        Axial distance D between the waists [m], on candidate axes and a last wavelength axis as
+        the radii; the three broadcast together.
     offset_range_m, tilt_range_rad : (float, float)
         (low, high) of the offset [m] and of the tilt [rad], both ≥ 0.
     cosine_range : (float, float)
@@ -543,7 +560,7 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     Returns
     -------
     (numpy.ndarray, numpy.ndarray)
-        The least and the largest η over the box, broadcast over the inputs.
+        The least and the largest η over the box and the candidates, shape (wavelengths,).
 
     References
     ----------
@@ -554,24 +571,106 @@ def circular_coupling_extremes(w1_m, w2_m, wavenumber_per_m, *, separation_m, of
     gap_m = non_negative(separation_m, "separation")
     (d_low, d_high), (t_low, t_high) = (sorted(non_negative(pair, name)) for pair, name in
                                         ((offset_range_m, "offset"), (tilt_range_rad, "tilt")))
-    u_least, u_largest = cosine_range
-    k_sq = np.asarray(wavenumber_per_m) ** 2
+    box = (d_low, d_high, t_low, t_high, *cosine_range)
+    corners = _extreme_corners(*box)
+    inputs = (w1_sq, w2_sq, gap_m)
+    constant = all(values.shape[-1] == 1 for values in inputs)
+    terms = _closed_form_terms(*inputs, box, corners) if constant else None
+    k_sq = np.square(wavenumber_per_m)
+    # The edge d = d_low, at θ* = u·cross·d_low/(2·w2²H): where θ* ≤ θ_low its least Q is the corner
+    # (d_low, θ_low), on the edge θ = θ_low already searched. With terms the same at every
+    # wavelength, w2²H grows with k², so θ* is largest at the least k².
+    on_low_offset = cosine_range[1] * d_low > 0 and (not constant or np.any(
+        terms["low_offset_numerator"] > 2.0 * t_low * (terms["h_0"] + terms["h_k"] * np.min(k_sq))))
+
+    points = k_sq.shape[-1]
+    candidates = np.broadcast_shapes(*(values.shape[:-1] for values in inputs))
+    candidate_axes = tuple(range(len(candidates)))
+    width = min(points, max(1, _BLOCK_VALUES // max(1, int(np.prod(candidates)))))
+    buffers = np.empty((5, *candidates, width))
+    least, largest = np.empty(points), np.empty(points)
+    for start in range(0, points, width):
+        block = slice(start, start + width)
+        part = terms if constant else _closed_form_terms(*(_over_block(values, block) for values in inputs), box,
+                                                         corners)
+        most, fewest = _block_extremes(part, k_sq[block], buffers[..., :min(width, points - start)], box, corners,
+                                       on_low_offset)
+        np.min(most, axis=candidate_axes, out=least[block])
+        np.max(fewest, axis=candidate_axes, out=largest[block])
+    return least, largest
+
+
+def _block_extremes(part, k_sq, buffers, box, corners, on_low_offset):
+    """(least, largest) η of each candidate over one block of wavelengths
+    (:func:`circular_coupling_extremes`), from its :func:`_closed_form_terms` ``part`` and k², computed
+    in place in the five ``buffers`` (two of which it returns)."""
+    d_low, _, t_low, t_high, _, _ = box
+    inverse_s_sq, w2_sq_h, most, fewest, other = buffers
+    np.divide(part["gap_term"], k_sq, out=inverse_s_sq)
+    inverse_s_sq += part["sum_sq_sq"]
+    np.divide(1.0, inverse_s_sq, out=inverse_s_sq)
+    np.multiply(part["h_k"], k_sq, out=w2_sq_h)
+    w2_sq_h += part["h_0"]
+    _quadratic_into(fewest, w2_sq_h, part["low_tilt_fixed"], t_low**2)
+    if on_low_offset:  # Q on the edge d = d_low at θ* = u·cross·d_low/(2·w2²H), clipped
+        t_star = most  # scratch until the corners are evaluated
+        np.multiply(2.0, w2_sq_h, out=t_star)
+        np.divide(part["low_offset_numerator"], t_star, out=t_star)
+        np.clip(t_star, t_low, t_high, out=t_star)
+        np.multiply(part["low_offset_cross"], t_star, out=other)
+        other *= d_low
+        np.subtract(part["low_offset_fixed"], other, out=other)
+        np.square(t_star, out=t_star)
+        t_star *= w2_sq_h
+        other += t_star
+        np.minimum(fewest, other, out=fewest)
+    (_, first_tilt), *others = corners
+    _quadratic_into(most, w2_sq_h, part["corner_fixed"][0], first_tilt**2)
+    for fixed, (_, tilt_rad) in zip(part["corner_fixed"][1:], others, strict=True):
+        np.maximum(most, _quadratic_into(other, w2_sq_h, fixed, tilt_rad**2), out=most)
+    scale = np.multiply(part["scale_factor"], inverse_s_sq, out=w2_sq_h)
+    inverse_s_sq *= -2.0
+    for exponent in (most, fewest):  # η = scale·exp(−2·Q/|S|²), in place
+        exponent *= inverse_s_sq
+        np.exp(exponent, out=exponent)
+        exponent *= scale
+    return most, fewest
+
+
+def _extreme_corners(d_low, d_high, t_low, t_high, u_least, u_largest):
+    """The (offset, tilt) corners where Q can be largest (:func:`circular_coupling_extremes`)."""
+    if u_least <= 0:
+        return [(d_high, t_high)]
+    return [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
+
+
+def _closed_form_terms(w1_sq, w2_sq, gap_m, box, corners):
+    """What :func:`circular_coupling_extremes` needs that does not depend on the wavenumber:
+    |S|² = Σ² + gap_term/k², w2²H = h_0 + h_k·k², η = scale_factor/|S|²·exp(−2·Q/|S|²), and Q at
+    a box point = fixed + w2²H·θ², by the fixed part of each point."""
+    d_low, d_high, t_low, _, u_least, u_largest = box
     sum_sq = w1_sq + w2_sq
-    inverse_s_sq = 1.0 / (sum_sq**2 + 4.0 * gap_m**2 / k_sq)
-    w2_sq_h = w2_sq * gap_m**2 + (w1_sq * w2_sq * sum_sq / 4.0) * k_sq  # w2²H
     cross = 2.0 * gap_m * w2_sq  # Q's cross term is −u·cross·θd
+    d_star = np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high)
+    low_offset_cross = u_largest * cross
+    return dict(sum_sq_sq=sum_sq**2, gap_term=4.0 * gap_m**2, h_k=w1_sq * w2_sq * sum_sq / 4.0,
+                h_0=w2_sq * gap_m**2, scale_factor=4.0 * w1_sq * w2_sq,
+                low_tilt_fixed=sum_sq * d_star**2 - u_largest * cross * t_low * d_star,
+                low_offset_cross=low_offset_cross, low_offset_numerator=low_offset_cross * d_low,
+                low_offset_fixed=sum_sq * d_low**2,
+                corner_fixed=[sum_sq * d**2 - u_least * cross * t * d for d, t in corners])
 
-    def quadratic(d, theta, u):  # Q at the box point (d, θ) and the cosine u
-        return (sum_sq * d**2 - u * cross * theta * d) + w2_sq_h * theta**2
 
-    corners = [(d_high, t_high)] if u_least <= 0 else [(d, t) for d in (d_low, d_high) for t in (t_low, t_high)]
-    most = functools.reduce(np.maximum, (quadratic(d, t, u_least) for d, t in corners))
-    fewest = quadratic(np.clip(u_largest * cross * t_low / (2.0 * sum_sq), d_low, d_high), t_low, u_largest)
-    if u_largest * d_low > 0:
-        t_star = np.clip(u_largest * cross * d_low / (2.0 * w2_sq_h), t_low, t_high)
-        fewest = np.minimum(fewest, quadratic(d_low, t_star, u_largest))
-    scale = 4.0 * w1_sq * w2_sq * inverse_s_sq
-    return scale * np.exp(-2.0 * inverse_s_sq * most), scale * np.exp(-2.0 * inverse_s_sq * fewest)
+def _over_block(values, block):
+    """Values over a block of wavelengths, the last axis (the same in every block when constant)."""
+    return values if values.shape[-1] == 1 else values[..., block]
+
+
+def _quadratic_into(out, w2_sq_h, fixed, theta_sq):
+    """Q = fixed + w2²H·θ² at a box point (:func:`circular_coupling_extremes`), into ``out``."""
+    np.multiply(w2_sq_h, theta_sq, out=out)
+    out += fixed
+    return out
 
 
 def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_across_m, wavelength_m, *,
@@ -606,8 +705,9 @@ def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_acr
     Returns
     -------
     numpy.ndarray
-        η = η_along(d, θ·cos ψ)·η_across(0, θ·sin ψ), each factor from
-        :func:`coupling_efficiency_1d`.
+        η = η_along(d, θ·cos ψ)·η_across(0, θ·sin ψ), each factor that of
+        :func:`coupling_efficiency_1d` (the two share their :func:`misalignment_terms` when both
+        modes give the same radii, the same arrays, along and across).
 
     Notes
     -----
@@ -630,10 +730,14 @@ def coupling_efficiency_tilt_azimuth(w1_along_m, w1_across_m, w2_along_m, w2_acr
         raise ValueError("an azimuth cosine lies in [-1, 1]")
     common = dict(separation_m=separation_m, n=n)
     tilt_rad = finite(tilt_rad, "tilt")
-    along = coupling_efficiency_1d(w1_along_m, w2_along_m, wavelength_m, offset_m=offset_m,
-                                   tilt_rad=tilt_rad * cosine, **common)
-    across = coupling_efficiency_1d(w1_across_m, w2_across_m, wavelength_m,
-                                    tilt_rad=tilt_rad * np.sqrt(1.0 - cosine**2), **common)
+    offset_m = finite(offset_m, "offset")
+    along_terms = misalignment_terms(w1_along_m, w2_along_m, wavelength_m, **common)
+    if w1_across_m is w1_along_m and w2_across_m is w2_along_m:  # circular modes: one set of terms
+        across_terms = along_terms
+    else:
+        across_terms = misalignment_terms(w1_across_m, w2_across_m, wavelength_m, **common)
+    along = _axis_efficiency(along_terms, offset_m, tilt_rad * cosine)
+    across = _axis_efficiency(across_terms, 0.0, tilt_rad * np.sqrt(1.0 - cosine**2))
     return along * across
 
 

@@ -178,8 +178,7 @@ def coupling_losses_db(wavelength_m, before, after, cases, *, offset=None, tilt=
     """
     def typical_at(case):
         cosine = _azimuth_cosine(case, tilt, tilt_direction)
-        at = _per_offset_axis(wavelength_m, (before.x.at(case), before.y.at(case)),
-                              (after.x.at(case), after.y.at(case)),
+        at = _per_offset_axis(wavelength_m, _radii_at(before, case), _radii_at(after, case),
                               _value(case, offset), _value(case, tilt), _value(case, separation), n,
                               circular=_circular(before) and _circular(after))
         return _worse_axis(at(cosine))
@@ -204,28 +203,19 @@ def _span(spread):
     return ends[0], ends[-1]
 
 
-#: Wavelengths the closed-form search evaluates at once: its candidates-by-wavelengths
-#: temporaries stay in the cache and are reused instead of being mapped afresh on a long sweep.
-_BLOCK_POINTS = 8192
-
-
 def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling between circular modes: the closed form over offset, tilt and
-    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) at every candidate
-    of mode sizes and separation at once, in blocks of wavelengths, so memory is O(wavelengths)."""
+    azimuth (:func:`~linkbudget.physics.gaussian.circular_coupling_extremes`) over every candidate
+    of mode sizes and separation at once (one candidate axis each), in blocks of wavelengths, so
+    memory is O(wavelengths)."""
     given = None if tilt_direction is None else TILT_DIRECTION_COSINES[tilt_direction]
     box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
                cosine_range=(-1.0, 1.0) if given is None else (given, given))
     wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
-    candidates = [(w1, w2, z) for (w1, _), (w2, _), z in itertools.product(
-        _mode_candidates(before, after), _mode_candidates(after, before), _ends(separation))]
-    w1, w2, gap = (_candidate_axis(values) for values in zip(*candidates, strict=True))
-    least, largest = np.empty_like(wavenumber), np.empty_like(wavenumber)
-    for start in range(0, wavenumber.shape[-1], _BLOCK_POINTS):
-        block = slice(start, start + _BLOCK_POINTS)
-        low, high = gaussian.circular_coupling_extremes(_in_block(w1, block), _in_block(w2, block),
-                                                        wavenumber[block], separation_m=_in_block(gap, block), **box)
-        least[block], largest[block] = low.min(axis=0), high.max(axis=0)
+    before_sizes, after_sizes = ([x for x, _ in candidates] for candidates in _both_candidates(before, after))
+    w1, w2 = _candidate_axis(before_sizes)[:, None, None], _candidate_axis(after_sizes)[None, :, None]
+    gap = np.array(_ends(separation), dtype=float)[None, None, :, None]
+    least, largest = gaussian.circular_coupling_extremes(w1, w2, wavenumber.reshape(-1), separation_m=gap, **box)
     return least.reshape(np.shape(wavelength_m)), largest.reshape(np.shape(wavelength_m))
 
 
@@ -236,18 +226,12 @@ def _candidate_axis(values):
     return np.stack(arrays).reshape(len(arrays), -1)
 
 
-def _in_block(values, block):
-    """Candidate values over this block of wavelengths (a constant is the same in every block)."""
-    return values if values.shape[-1] == 1 else values[:, block]
-
-
 def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, tilt_direction):
     """(least, largest) coupling efficiency over the corners of the tolerance box and every
     azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks: for elliptical modes,
     whose overlap is not one quadratic in offset and tilt over both axes."""
     shape = np.shape(wavelength_m)
-    corners = list(itertools.product(_mode_candidates(before, after), _mode_candidates(after, before),
-                                     _ends(offset), _ends(tilt), _ends(separation)))
+    corners = list(itertools.product(*_both_candidates(before, after), _ends(offset), _ends(tilt), _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
@@ -263,11 +247,39 @@ def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, t
     return np.min(least, axis=0), np.max(largest, axis=0)
 
 
-def _mode_candidates(mode, other):
-    """(x, y) radii of ``mode`` to search, each once: the ends of its range, and the ends of
-    ``other``'s clipped into its range (where the ranges overlap, equal sizes couple best)."""
-    (x_low, x_high), (y_low, y_high) = mode.x.ends(), mode.y.ends()
-    (other_x_low, other_x_high), (other_y_low, other_y_high) = other.x.ends(), other.y.ends()
+def _one_if_constant(radius_m):
+    """The radius [m] with a wavelength axis of length one where it is the same at every
+    wavelength (a datasheet mode field diameter), else as given: the coupling then computes what
+    does not depend on the wavelength once, and broadcasts it."""
+    radius_m = np.asarray(radius_m, dtype=float)
+    if radius_m.ndim and radius_m.shape[-1] > 1 and np.all(radius_m == radius_m[..., :1]):
+        return radius_m[..., :1]
+    return radius_m
+
+
+def _radii_at(mode, case):
+    """(x, y) radii [m] of ``mode`` in ``case`` (:func:`_one_if_constant`), y the same array as x
+    for a circular mode."""
+    x = _one_if_constant(mode.x.at(case))
+    return x, (x if _circular(mode) else _one_if_constant(mode.y.at(case)))
+
+
+def _mode_ends(mode):
+    """((x low, x high), (y low, y high)) radii [m] of ``mode`` (:func:`_one_if_constant`), each
+    axis's ends computed once."""
+    def ends(axis):
+        return tuple(_one_if_constant(end) for end in axis.ends())
+
+    x = ends(mode.x)
+    return x, (x if _circular(mode) else ends(mode.y))
+
+
+def _mode_candidates(ends, other_ends):
+    """(x, y) radii of a mode to search, each once, from its :func:`_mode_ends` and the other
+    mode's: the ends of its range, and the ends of the other's clipped into its range (where the
+    ranges overlap, equal sizes couple best)."""
+    (x_low, x_high), (y_low, y_high) = ends
+    (other_x_low, other_x_high), (other_y_low, other_y_high) = other_ends
     candidates = [(x_low, y_low), (x_high, y_high),
                   (np.clip(other_x_low, x_low, x_high), np.clip(other_y_low, y_low, y_high)),
                   (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
@@ -276,6 +288,12 @@ def _mode_candidates(mode, other):
         if not any(np.array_equal(x, seen_x) and np.array_equal(y, seen_y) for seen_x, seen_y in unique):
             unique.append((x, y))
     return unique
+
+
+def _both_candidates(before, after):
+    """(candidates of ``before``, candidates of ``after``) (:func:`_mode_candidates`)."""
+    before_ends, after_ends = _mode_ends(before), _mode_ends(after)
+    return _mode_candidates(before_ends, after_ends), _mode_candidates(after_ends, before_ends)
 
 
 def aperture_losses_db(wavelength_m, launched, cases, *, separation, aperture_diameter, n=1.0):
