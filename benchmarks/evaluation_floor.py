@@ -6,7 +6,9 @@ A link of our own invention (a greenhouse spectrometer feed) holds a two-layer c
 dispersive catalog media (fused silica, sapphire, air from their dispersion formulas), a connector
 computed from its offset, tilt, gap and mode field diameters, and free-space gaps, one of them
 into an aperture. It is swept over N = 1,000, 10,000 and 100,000 wavelengths. Printed, all as
-ratios measured in this one run (times are the best of a few repeats with ``time.perf_counter``):
+ratios measured in this one run (times are the best of a few repeats with ``time.perf_counter``, at
+least two at every size: a process's first evaluation of a size also pays the operating system's
+first touch of the memory it takes, which the best of one would count at one size and not another):
 
 (a) evaluation time per point, and the ratio of the time per point at 10 N to that at N
     (1.0 is linear; target <= 1.25, the 2.5-per-doubling rule of ``output_scaling.py``);
@@ -165,9 +167,12 @@ def chain_text(n_segments):
 
 
 def best_seconds(function, repeats):
-    """The least time of ``repeats`` calls of ``function`` and its last value."""
+    """The least time of ``repeats`` calls of ``function`` and its last value (each call's value
+    is let go before the next call: held, it would make the next call take all-new memory, as no
+    single evaluation does)."""
     best, value = np.inf, None
     for _ in range(repeats):
+        value = None
         start = time.perf_counter()
         value = function()
         best = min(best, time.perf_counter() - start)
@@ -230,7 +235,7 @@ def sweep_section(repeats, folder):
     per_point, worst = {}, {"floor": 0.0, "json": 0.0, "memory": 0.0}
     for n_points in SWEEP_POINTS:
         link = linkbudget.load(sweep_text(n_points))
-        tries = max(1, repeats if n_points < 100_000 else repeats // 2)
+        tries = max(2, repeats if n_points < 100_000 else repeats // 2)
         evaluation_s, result = best_seconds(lambda: linkbudget.evaluate(link), tries)  # noqa: B023
         if result.wavelength_m.size != n_points:
             raise SystemExit(f"the band holds {result.wavelength_m.size} points, not {n_points}")
@@ -278,7 +283,7 @@ def chain_section(repeats):
 
 def main():
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--repeats", type=int, default=3, help="repeats per timing (half of them at 100,000 points)")
+    parser.add_argument("--repeats", type=int, default=3, help="repeats per timing (half of them, at least two, at 100,000 points)")
     repeats = parser.parse_args().repeats
     with tempfile.TemporaryDirectory() as folder:
         sweep_section(repeats, Path(folder))
