@@ -283,7 +283,8 @@ def chain_section(repeats):
 
 def main():
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    parser.add_argument("--repeats", type=int, default=3, help="repeats per timing (half of them, at least two, at 100,000 points)")
+    parser.add_argument("--repeats", type=int, default=3, 
+                        help="repeats per timing (half of them, at least two, at 100,000 points)")
     repeats = parser.parse_args().repeats
     with tempfile.TemporaryDirectory() as folder:
         sweep_section(repeats, Path(folder))

@@ -2,9 +2,9 @@
 
 Runs the installed console script (``linkbudget`` beside this Python), so that the package is
 imported as users import it, compiled files included. Each round runs the numpy floor and then
-every command once, in turn, so that a slow spell of the machine touches all of them alike; the
-ratio of each command to the floor is taken within a round and printed as the median of the
-rounds with its min–max.
+every command once, in turn, so that a slow spell of the machine touches all of them alike (all
+with one BLAS thread, :data:`SINGLE_THREADED`); the ratio of each command to the floor is taken
+within a round and printed as the median of the rounds with its min–max.
 
 Targets (issue 13): ``run`` on each shipped example ≤ 2.5× the floor, ``--help`` ≤ 0.7×.
 
@@ -12,6 +12,7 @@ Run: python benchmarks/startup.py [--rounds N]
 """
 
 import argparse
+import os
 import statistics
 import subprocess
 import sys
@@ -25,9 +26,15 @@ FLOOR = [sys.executable, "-c", "import numpy"]
 TARGETS = {"--help": 0.7, "run": 2.5}
 
 
+#: One BLAS thread in the floor and in every command: numpy's import starts a thread per core, so
+#: with more the floor's time swings with the machine's load (one core busy: 77 -> 123 ms here,
+#: while ``run`` stayed near 350 ms), and every ratio read low on a busy machine.
+SINGLE_THREADED = {**os.environ, "OPENBLAS_NUM_THREADS": "1", "OMP_NUM_THREADS": "1", "MKL_NUM_THREADS": "1"}
+
+
 def seconds_of(command):
     start = time.perf_counter()
-    subprocess.run(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, check=False)
+    subprocess.run(command, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, check=False, env=SINGLE_THREADED)
     return time.perf_counter() - start
 
 
@@ -40,13 +47,14 @@ def commands():
 
 
 def ratios_by_round(named, rounds):
-    """name -> the ratio of the command to the floor run just before it, one per round."""
-    ratios = {name: [] for name in named}
+    """(name -> the ratio of the command to the floor run just before it, one per round; the
+    floor's times [s])."""
+    ratios, floors = {name: [] for name in named}, []
     for _ in range(rounds):
         for name, (command, _target) in named.items():
-            floor = seconds_of(FLOOR)
-            ratios[name].append(seconds_of(command) / floor)
-    return ratios
+            floors.append(seconds_of(FLOOR))
+            ratios[name].append(seconds_of(command) / floors[-1])
+    return ratios, floors
 
 
 def main():
@@ -58,8 +66,11 @@ def main():
     named = commands()
     for command, _target in named.values():  # warm the file cache
         seconds_of(command)
-    ratios = ratios_by_round(named, rounds)
+    load_before = os.getloadavg()[0]
+    ratios, floors = ratios_by_round(named, rounds)
     print(f"ratio to `python -c 'import numpy'` run just before it; median (min-max) of {rounds} rounds")
+    print(f"floor median {statistics.median(floors) * 1e3:.0f} ms; 1-minute load average {load_before:.2f} before, "
+          f"{os.getloadavg()[0]:.2f} after (one BLAS thread everywhere, see SINGLE_THREADED)")
     met = True
     for name, (_command, target) in named.items():
         median = statistics.median(ratios[name])
