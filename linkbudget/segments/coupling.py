@@ -9,10 +9,14 @@ too, and the typical point takes the tilt across the offset.
 Every toleranced value (offset, tilt, separation, each side's mode-field diameter) is a spread;
 the worst case is the smallest coupling over the corners of the tolerance box, the best case the
 largest. The typical point and the interior points where coupling peaks are candidates too: equal
-mode sizes where the two sides' ranges overlap, and the waist that spreads least over a gap, so
-that the best case (the overload check) is not optimistic where coupling is not monotonic in a
-value. (The corners as the extremes of a tolerance stack-up are common practice; coupling falls
-monotonically in offset, tilt and separation alone, not always in a mode size.)
+mode sizes where the two sides' ranges overlap, the sizes that couple best across the least gap
+(w⁴ = w'⁴ + (λD/(πn))², :func:`_gap_matched_radius_m`), and the waist that spreads least over a
+gap, so that the best case (the overload check) is not optimistic where coupling is not monotonic
+in a value. With an offset d or a tilt at the best corner the best size moves a little further
+(by about d² in w², a gain of order (d²/2w²)² in η), which the search does not follow: its best
+case may then read pessimistic by that much, never optimistic. (The corners as the extremes of a
+tolerance stack-up are common practice; coupling falls monotonically in offset, tilt and
+separation alone, not always in a mode size.)
 """
 
 import itertools
@@ -212,7 +216,9 @@ def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n,
     box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
                cosine_range=(-1.0, 1.0) if given is None else (given, given))
     wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
-    before_sizes, after_sizes = ([x for x, _ in candidates] for candidates in _both_candidates(before, after))
+    gap_term_sq = _matched_gap_term_sq(wavelength_m, before, after, separation, n)
+    before_sizes, after_sizes = ([x for x, _ in candidates] for candidates in
+                                 _both_candidates(before, after, gap_term_sq))
     w1, w2 = _candidate_axis(before_sizes)[:, None, None], _candidate_axis(after_sizes)[None, :, None]
     gap = np.array(_ends(separation), dtype=float)[None, None, :, None]
     least, largest = gaussian.circular_coupling_extremes(w1, w2, wavenumber.reshape(-1), separation_m=gap, **box)
@@ -231,7 +237,9 @@ def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, t
     azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks: for elliptical modes,
     whose overlap is not one quadratic in offset and tilt over both axes."""
     shape = np.shape(wavelength_m)
-    corners = list(itertools.product(*_both_candidates(before, after), _ends(offset), _ends(tilt), _ends(separation)))
+    gap_term_sq = _matched_gap_term_sq(wavelength_m, before, after, separation, n)
+    corners = list(itertools.product(*_both_candidates(before, after, gap_term_sq), _ends(offset), _ends(tilt),
+                                     _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
@@ -274,15 +282,20 @@ def _mode_ends(mode):
     return x, (x if _circular(mode) else ends(mode.y))
 
 
-def _mode_candidates(ends, other_ends):
+def _mode_candidates(ends, other_ends, gap_term_sq=None):
     """(x, y) radii of a mode to search, each once, from its :func:`_mode_ends` and the other
     mode's: the ends of its range, and the ends of the other's clipped into its range (where the
-    ranges overlap, equal sizes couple best)."""
+    ranges overlap, equal sizes couple best); across a gap, also the sizes that couple best with
+    each end of the other (:func:`_gap_matched_radius_m`, where ``gap_term_sq`` is given)."""
     (x_low, x_high), (y_low, y_high) = ends
     (other_x_low, other_x_high), (other_y_low, other_y_high) = other_ends
     candidates = [(x_low, y_low), (x_high, y_high),
                   (np.clip(other_x_low, x_low, x_high), np.clip(other_y_low, y_low, y_high)),
                   (np.clip(other_x_high, x_low, x_high), np.clip(other_y_high, y_low, y_high))]
+    if gap_term_sq is not None:
+        candidates += [(np.clip(_gap_matched_radius_m(other_x, gap_term_sq), x_low, x_high),
+                        np.clip(_gap_matched_radius_m(other_y, gap_term_sq), y_low, y_high))
+                       for other_x, other_y in ((other_x_low, other_y_low), (other_x_high, other_y_high))]
     unique = []
     for x, y in candidates:
         if not any(np.array_equal(x, seen_x) and np.array_equal(y, seen_y) for seen_x, seen_y in unique):
@@ -290,10 +303,46 @@ def _mode_candidates(ends, other_ends):
     return unique
 
 
-def _both_candidates(before, after):
+def _both_candidates(before, after, gap_term_sq=None):
     """(candidates of ``before``, candidates of ``after``) (:func:`_mode_candidates`)."""
     before_ends, after_ends = _mode_ends(before), _mode_ends(after)
-    return _mode_candidates(before_ends, after_ends), _mode_candidates(after_ends, before_ends)
+    return (_mode_candidates(before_ends, after_ends, gap_term_sq),
+            _mode_candidates(after_ends, before_ends, gap_term_sq))
+
+
+#: Below this (λD/(πn))² / w⁴ at the least separation D, the radius coupling best across the gap
+#: is the other's own to better than 10^-6 in η (the gain is of the order of its square):
+#: :func:`_matched_gap_term_sq` leaves those candidates out.
+_GAP_MATCH_NEGLIGIBLE = 1e-3
+
+
+def _gap_matched_radius_m(other_radius_m, gap_term_sq):
+    """The radius w that couples best with a mode of radius w' across a gap, offset and tilt
+    aside: w⁴ = w'⁴ + (λD/(πn))².
+
+    The gap's coupling of two Gaussian waists D apart, η = 4w²w'²/((w² + w'²)² + (λD/(πn))²)
+    (Joyce and DeLoach 1984 [1]_, the separation term of
+    :func:`~linkbudget.physics.gaussian.circular_coupling_extremes`), is largest in w² where its
+    derivative vanishes, (w²)² = (w'²)² + (λD/(πn))²; each axis of an elliptical mode alike.
+
+    References
+    ----------
+    .. [1] W. B. Joyce and B. C. DeLoach, "Alignment of Gaussian beams", Appl. Opt. 23, 4187
+       (1984) (from memory).
+    """
+    return (np.asarray(other_radius_m, dtype=float) ** 4 + gap_term_sq) ** 0.25
+
+
+def _matched_gap_term_sq(wavelength_m, before, after, separation, n):
+    """(λD/(πn))² at the least separation D, or ``None`` where the sizes coupling best across the
+    gap differ from the other side's own by a negligible amount (:data:`_GAP_MATCH_NEGLIGIBLE`)
+    or neither mode size has a range to search."""
+    ends = [end for mode in (before, after) for axis in _mode_ends(mode) for end in axis]
+    if all(np.array_equal(low, high) for low, high in zip(ends[::2], ends[1::2], strict=True)):
+        return None
+    gap_term_sq = (np.asarray(wavelength_m) * _span(separation)[0] / (np.pi * np.real(n))) ** 2
+    least_radius = min(float(np.min(end)) for end in ends)
+    return gap_term_sq if np.max(gap_term_sq) / least_radius**4 > _GAP_MATCH_NEGLIGIBLE else None
 
 
 def aperture_losses_db(wavelength_m, launched, cases, *, separation, aperture_diameter, n=1.0):
