@@ -14,6 +14,8 @@ Printed, as ratios measured in this one run:
     length × attenuation), in chunks of 2^16 trials; targets <= 2 (A) and <= 5 (B);
 (b) the peak memory traced (``tracemalloc``, which sees numpy's buffers) of a statistical run and
     the process's peak resident size (``resource``, imports included); target < 500 MB.
+(c) the engine's time per trial at N against N / 10 (1.0 is linear in the draws, as the
+    evaluation must be; target <= 1.25, as for the wavelengths in ``evaluation_floor.py``);
 
 The timed runs and the traced run are separate (tracing slows allocation). Times are CPU times,
 the least of :data:`REPEATS` runs each.
@@ -33,6 +35,7 @@ from linkbudget.statistics import run_statistics
 TARGET_DATASHEET_RATIO = 2.0
 TARGET_GEOMETRIC_RATIO = 5.0
 TARGET_PEAK_MB = 500.0
+TARGET_DECADE_PER_TRIAL_RATIO = 1.25
 #: Each time is the least of this many runs, in CPU time of this process (``time.process_time``):
 #: on a shared machine the wall-clock time of one run counts the other processes' load too.
 REPEATS = 2
@@ -138,6 +141,11 @@ def main():
         engine = min(engine_seconds(link, result, trials, seed=1) for _ in range(REPEATS))
         print(f"{label}: {len(link.segments)} segments, engine {engine / trials * 1e9:.0f} ns/trial, "
               f"floor {floor / trials * 1e9:.0f} ns/trial, ratio {engine / floor:.2f} (target <= {target:g})")
+        fewer = trials // 10
+        fewer_seconds = min(engine_seconds(link, result, fewer, seed=1) for _ in range(REPEATS))
+        growth = (engine / trials) / (fewer_seconds / fewer)
+        print(f"    engine per trial at {trials} / at {fewer}: {growth:.2f} (1.0 linear; "
+              f"target <= {TARGET_DECADE_PER_TRIAL_RATIO:g})")
     peak = traced_peak_mb(link, result, trials, seed=1)
     resident = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024
     print(f"peak traced memory of a run (B): {peak:.0f} MB; process peak resident {resident:.0f} MB "
