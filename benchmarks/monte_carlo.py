@@ -13,9 +13,9 @@ Printed, as ratios measured in this one run:
     own normal, uniform and triangular draws, no truncation) and the rows summed (a fibre's as
     length × attenuation), in chunks of 2^16 trials; targets <= 2 (A) and <= 5 (B);
 (b) the peak memory traced (``tracemalloc``, which sees numpy's buffers) of a statistical run and
-    the process's peak resident size (``resource``, imports included); target < 500 MB.
+    the process's peak resident size (``resource``, imports included); target < 500 MB;
 (c) the engine's time per trial at N against N / 10 (1.0 is linear in the draws, as the
-    evaluation must be; target <= 1.25, as for the wavelengths in ``evaluation_floor.py``);
+    evaluation must be; target <= 1.25, as for the wavelengths in ``evaluation_floor.py``).
 
 The timed runs and the traced run are separate (tracing slows allocation). Times are CPU times,
 the least of :data:`REPEATS` runs each.
