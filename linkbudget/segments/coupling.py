@@ -216,9 +216,8 @@ def _circular_extremes(wavelength_m, before, after, offset, tilt, separation, n,
     box = dict(offset_range_m=_span(offset), tilt_range_rad=_span(tilt),
                cosine_range=(-1.0, 1.0) if given is None else (given, given))
     wavenumber = np.atleast_1d(gaussian.wavenumber_per_m(wavelength_m, n=n))
-    gap_term_sq = _matched_gap_term_sq(wavelength_m, before, after, separation, n)
     before_sizes, after_sizes = ([x for x, _ in candidates] for candidates in
-                                 _both_candidates(before, after, gap_term_sq))
+                                 _both_candidates(before, after, wavelength_m, separation, n))
     w1, w2 = _candidate_axis(before_sizes)[:, None, None], _candidate_axis(after_sizes)[None, :, None]
     gap = np.array(_ends(separation), dtype=float)[None, None, :, None]
     least, largest = gaussian.circular_coupling_extremes(w1, w2, wavenumber.reshape(-1), separation_m=gap, **box)
@@ -237,9 +236,8 @@ def _corner_extremes(wavelength_m, before, after, offset, tilt, separation, n, t
     azimuth the tilt may have (:func:`_searched_cosines`), in bounded chunks: for elliptical modes,
     whose overlap is not one quadratic in offset and tilt over both axes."""
     shape = np.shape(wavelength_m)
-    gap_term_sq = _matched_gap_term_sq(wavelength_m, before, after, separation, n)
-    corners = list(itertools.product(*_both_candidates(before, after, gap_term_sq), _ends(offset), _ends(tilt),
-                                     _ends(separation)))
+    corners = list(itertools.product(*_both_candidates(before, after, wavelength_m, separation, n),
+                                     _ends(offset), _ends(tilt), _ends(separation)))
     per_chunk = max(1, _CHUNK_VALUES // (8 * max(1, int(np.prod(shape)))))
     least, largest = [], []
     for start in range(0, len(corners), per_chunk):
@@ -303,9 +301,11 @@ def _mode_candidates(ends, other_ends, gap_term_sq=None):
     return unique
 
 
-def _both_candidates(before, after, gap_term_sq=None):
-    """(candidates of ``before``, candidates of ``after``) (:func:`_mode_candidates`)."""
+def _both_candidates(before, after, wavelength_m, separation, n):
+    """(candidates of ``before``, candidates of ``after``) (:func:`_mode_candidates`) across the
+    ``separation`` in a medium of index ``n``."""
     before_ends, after_ends = _mode_ends(before), _mode_ends(after)
+    gap_term_sq = _matched_gap_term_sq(wavelength_m, (*before_ends, *after_ends), separation, n)
     return (_mode_candidates(before_ends, after_ends, gap_term_sq),
             _mode_candidates(after_ends, before_ends, gap_term_sq))
 
@@ -333,12 +333,12 @@ def _gap_matched_radius_m(other_radius_m, gap_term_sq):
     return (np.asarray(other_radius_m, dtype=float) ** 4 + gap_term_sq) ** 0.25
 
 
-def _matched_gap_term_sq(wavelength_m, before, after, separation, n):
+def _matched_gap_term_sq(wavelength_m, axes_ends, separation, n):
     """(λD/(πn))² at the least separation D, or ``None`` where the sizes coupling best across the
     gap differ from the other side's own by a negligible amount (:data:`_GAP_MATCH_NEGLIGIBLE`)
-    or neither mode size has a range to search."""
-    ends = [end for mode in (before, after) for axis in _mode_ends(mode) for end in axis]
-    if all(np.array_equal(low, high) for low, high in zip(ends[::2], ends[1::2], strict=True)):
+    or no mode size has a range to search (``axes_ends``: (low, high) of each mode axis)."""
+    ends = [end for axis in axes_ends for end in axis]
+    if all(np.array_equal(low, high) for low, high in axes_ends):
         return None
     gap_term_sq = (np.asarray(wavelength_m) * _span(separation)[0] / (np.pi * np.real(n))) ** 2
     least_radius = min(float(np.min(end)) for end in ends)
