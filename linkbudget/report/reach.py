@@ -3,7 +3,6 @@
 Both read a :class:`linkbudget.reach.Reach` and compute nothing of their own.
 """
 
-
 from linkbudget import __version__
 from linkbudget.reach import LIMITED, NEVER_LIMITS
 from linkbudget.report.json import json_text

@@ -337,11 +337,10 @@ def _matched_gap_term_sq(wavelength_m, axes_ends, separation, n):
     """(λD/(πn))² at the least separation D, or ``None`` where the sizes coupling best across the
     gap differ from the other side's own by a negligible amount (:data:`_GAP_MATCH_NEGLIGIBLE`)
     or no mode size has a range to search (``axes_ends``: (low, high) of each mode axis)."""
-    ends = [end for axis in axes_ends for end in axis]
     if all(np.array_equal(low, high) for low, high in axes_ends):
         return None
     gap_term_sq = (np.asarray(wavelength_m) * _span(separation)[0] / (np.pi * np.real(n))) ** 2
-    least_radius = min(float(np.min(end)) for end in ends)
+    least_radius = min(float(np.min(low)) for low, _ in axes_ends)
     return gap_term_sq if np.max(gap_term_sq) / least_radius**4 > _GAP_MATCH_NEGLIGIBLE else None
 
 
